@@ -1,0 +1,94 @@
+/**
+ * The whole assessment of one visit: inputs → result, pure. Every view
+ * (terminal, JSON, CSV, HTML, SVG) renders this object.
+ */
+import { caveatsFor, referralNote } from './caveats.js';
+import { checkVisit } from './checks.js';
+import { PES_METHOD_LABEL, computeResults, defaultChoice, dopplerStrokeVolume, endSystolicPressure, type MethodChoice, type Results, type StrokeVolumeSource } from './compute.js';
+import { PES_METHODS, type PesMethod } from './fields.js';
+import type { VisitInputs } from './inputs.js';
+import { METHODS_VERSION, type Flag } from './result.js';
+
+export interface MethodVariant {
+  pesMethod: PesMethod;
+  pesLabel: string;
+  strokeVolumeSource: StrokeVolumeSource | 'none';
+  pes: number | null;
+  sv: number | null;
+  ea: number | null;
+  ees: number | null;
+  eesMethod: 'single-beat' | 'Pes/ESV';
+  eaEes: number | null;
+  reason?: string;
+  isMain: boolean;
+}
+
+export interface Assessment {
+  methodsVersion: string;
+  inputs: VisitInputs;
+  choice: MethodChoice;
+  results: Results;
+  flags: Flag[];
+  caveats: string[];
+  referral: string;
+  /** The recheck view: the same subject under the method variants. */
+  variants: MethodVariant[];
+  /** Every Pes estimate side by side. */
+  pesEstimates: { method: PesMethod; label: string; value: number | null }[];
+}
+
+export function assess(inputs: VisitInputs): Assessment {
+  const choice = defaultChoice(inputs);
+  const results = computeResults(inputs, choice);
+  const flags = checkVisit(inputs, results);
+  return {
+    methodsVersion: METHODS_VERSION,
+    inputs,
+    choice,
+    results,
+    flags,
+    caveats: caveatsFor(flags),
+    referral: referralNote(inputs, results, flags),
+    variants: methodVariants(inputs, choice),
+    pesEstimates: PES_METHODS.map((m) => ({ method: m, label: PES_METHOD_LABEL[m], value: endSystolicPressure(inputs, m) })),
+  };
+}
+
+/** Pes estimates × SV sources, each with single-beat Ees, plus the crude Pes/ESV row. */
+export function methodVariants(inputs: VisitInputs, main: MethodChoice = defaultChoice(inputs)): MethodVariant[] {
+  const sources: StrokeVolumeSource[] = dopplerStrokeVolume(inputs) ? ['doppler', 'volumetric'] : ['volumetric'];
+  const rows: MethodVariant[] = [];
+  for (const pesMethod of PES_METHODS) {
+    if (pesMethod === 'measured' && inputs.pesMeasured === null) continue;
+    for (const source of sources) {
+      const r = computeResults(inputs, { pesMethod, strokeVolumeSource: source });
+      rows.push(row(pesMethod, source, r, 'single-beat', main));
+    }
+    const r = computeResults(inputs, { pesMethod, strokeVolumeSource: main.strokeVolumeSource });
+    rows.push({
+      ...row(pesMethod, main.strokeVolumeSource, r, 'Pes/ESV', main),
+      ees: r.eesNoIntercept.value,
+      eaEes: r.ea.value !== null && r.eesNoIntercept.value !== null ? r.ea.value / r.eesNoIntercept.value : null,
+      reason: r.eesNoIntercept.reason,
+      isMain: false,
+    });
+  }
+  return rows;
+}
+
+function row(pesMethod: PesMethod, source: StrokeVolumeSource, r: Results, eesMethod: MethodVariant['eesMethod'], main: MethodChoice): MethodVariant {
+  const v: MethodVariant = {
+    pesMethod,
+    pesLabel: PES_METHOD_LABEL[pesMethod],
+    strokeVolumeSource: source,
+    pes: r.pes.value,
+    sv: r.sv.value,
+    ea: r.ea.value,
+    ees: r.ees.value,
+    eesMethod,
+    eaEes: r.eaEes.value,
+    isMain: eesMethod === 'single-beat' && pesMethod === main.pesMethod && source === main.strokeVolumeSource,
+  };
+  if (r.ees.reason) v.reason = r.ees.reason;
+  return v;
+}

@@ -1,0 +1,100 @@
+/**
+ * Validity and consistency checks, and findings that warrant clinical
+ * attention under common thresholds. Pure: inputs and results in, flags out.
+ */
+import { COUPLING_CUTOFF } from '../physiology/coupling.js';
+import { TND_TYPICAL } from '../physiology/normalized-elastance.js';
+import type { Results } from './compute.js';
+import type { VisitInputs } from './inputs.js';
+import type { Flag } from './result.js';
+
+/** Thresholds, each with its provenance. */
+export const THRESHOLDS = {
+  /** Reported EF vs EF from volumes: points of difference that merit a look (this project's choice, common practice). */
+  efGapPoints: 5,
+  /** Doppler vs volumetric SV: relative difference that merits a look (common practice). */
+  svGapFraction: 0.15,
+  /** LVEF lower normal limit, Lang RM et al. JASE 2015 (from memory): men 52 %, women 54 %. */
+  efLowerNormal: { male: 52, female: 54, unknown: 52 },
+  /** Severe blood pressure elevation: above 180 systolic or above 120 diastolic, ACC/AHA 2017 guideline (secondary sources seen; see docs/methods-verification.md). */
+  severeSystolic: 180,
+  severeDiastolic: 120,
+  /** Marked bradycardia and tachycardia (common practice). */
+  bradycardia: 50,
+  tachycardia: 100,
+  /** Invasive Ees range of the validation cohort, Chen 2001 abstract. */
+  eesValidated: { low: 0.4, high: 8.4 },
+  /** Below this age brachial amplification makes 0.9 × SBP overstate central Pes (common practice). */
+  amplificationAge: 40,
+} as const;
+
+export function checkVisit(inputs: VisitInputs, r: Results): Flag[] {
+  const flags: Flag[] = [];
+  const add = (code: string, level: Flag['level'], message: string) => flags.push({ code, level, message });
+
+  // Assumptions of the single-beat method (Chen 2001; common practice).
+  if (inputs.rhythm !== 'sinus') {
+    add('rhythm', 'caution', `Rhythm is ${inputs.rhythm}: the single-beat method assumes regular sinus rhythm; beat-to-beat variation makes one-beat intervals and volumes unreliable (average several beats at least).`);
+  }
+  if (inputs.aorticStenosis) {
+    add('aortic-stenosis', 'caution', 'Significant aortic stenosis: cuff pressure understates LV systolic pressure, so Pes, Ea and Ees are underestimated.');
+  }
+  if (inputs.aorticRegurgitation) {
+    add('aortic-regurgitation', 'caution', 'Significant aortic regurgitation: total and forward stroke volume differ; Ea from total SV understates the arterial load and Ees is unreliable.');
+  }
+  if (inputs.mitralRegurgitation) {
+    add('mitral-regurgitation', 'caution', 'Significant mitral regurgitation: volumetric SV includes the regurgitant volume; prefer Doppler SV, and read Ees with caution.');
+  }
+  if (inputs.outflowObstruction) {
+    add('outflow-obstruction', 'caution', 'LV outflow-tract obstruction: LV pressure exceeds aortic pressure, so a cuff-based Pes understates LV end-systolic pressure.');
+  }
+
+  const tNd = r.tNd.value;
+  if (tNd !== null && r.endAvg.value !== null && (tNd < TND_TYPICAL.low || tNd > TND_TYPICAL.high)) {
+    add('tnd-window', 'caution', `tNd ${tNd.toFixed(3)} lies outside ${TND_TYPICAL.low}–${TND_TYPICAL.high}, the usual adult range; check PEP and ET before trusting Ees.`);
+  }
+  if (r.ees.value === null) {
+    add('ees-not-computable', 'caution', `Ees not computable: ${r.ees.reason ?? 'see inputs'}.`);
+  } else if (r.ees.value < THRESHOLDS.eesValidated.low || r.ees.value > THRESHOLDS.eesValidated.high) {
+    add('ees-range', 'caution', `Ees ${r.ees.value.toFixed(2)} mmHg/mL is outside ${THRESHOLDS.eesValidated.low}–${THRESHOLDS.eesValidated.high} mmHg/mL, the invasive range in which the method was validated.`);
+  }
+  if (r.v0.value !== null && r.v0.value < -50) {
+    add('v0-negative', 'note', `Implied V0 ${r.v0.value.toFixed(0)} mL is strongly negative, as single-beat V0 often is in normal hearts; the ESPVR is a linear approximation far from the volume axis.`);
+  }
+
+  // Consistency between measurements.
+  if (inputs.ef !== null && r.efVolumes.value !== null) {
+    const gap = Math.abs(inputs.ef - r.efVolumes.value);
+    if (gap > THRESHOLDS.efGapPoints) {
+      add('ef-gap', 'caution', `Reported EF ${inputs.ef.toFixed(0)} % and EF from the volumes ${r.efVolumes.value.toFixed(0)} % differ by ${gap.toFixed(0)} points (more than ${THRESHOLDS.efGapPoints}); check the volumes or the report.`);
+    }
+  }
+  if (r.svDoppler.value !== null && r.svVolumetric.value !== null) {
+    const gap = Math.abs(r.svDoppler.value - r.svVolumetric.value) / r.svVolumetric.value;
+    if (gap > THRESHOLDS.svGapFraction) {
+      add('sv-gap', 'caution', `Doppler SV ${r.svDoppler.value.toFixed(0)} mL and volumetric SV ${r.svVolumetric.value.toFixed(0)} mL differ by ${(gap * 100).toFixed(0)} % (more than ${THRESHOLDS.svGapFraction * 100} %); Ea and Ees use the Doppler value.`);
+    }
+  }
+  if (inputs.age !== null && inputs.age < THRESHOLDS.amplificationAge && inputs.pesMethod === 'sbp90') {
+    add('amplification', 'note', `Age ${inputs.age.toFixed(0)}: brachial amplification is larger in the young, so 0.9 × brachial SBP may overstate central Pes.`);
+  }
+  if (r.eaEes.value !== null && r.eaEes.value > COUPLING_CUTOFF) {
+    add('coupling', 'note', `Ea/Ees ${r.eaEes.value.toFixed(2)} is above ${COUPLING_CUTOFF}, the cut-off taken as abnormal coupling in a heart-failure echo study.`);
+  }
+
+  // Findings that warrant clinical attention under common thresholds.
+  const efLimit = THRESHOLDS.efLowerNormal[inputs.sex ?? 'unknown'];
+  if (r.ef.value !== null && r.ef.value < efLimit) {
+    add('ef-low', 'attention', `EF ${r.ef.value.toFixed(0)} % is below the normal range (lower limit about ${efLimit} %${inputs.sex ? ' for ' + (inputs.sex === 'male' ? 'men' : 'women') : ''}, ASE/EACVI 2015).`);
+  }
+  if (inputs.sbp > THRESHOLDS.severeSystolic || inputs.dbp > THRESHOLDS.severeDiastolic) {
+    add('bp-severe', 'attention', `Blood pressure ${inputs.sbp.toFixed(0)}/${inputs.dbp.toFixed(0)} mmHg is severely elevated (above ${THRESHOLDS.severeSystolic} systolic or above ${THRESHOLDS.severeDiastolic} diastolic, ACC/AHA 2017).`);
+  }
+  if (inputs.hr !== null && inputs.hr < THRESHOLDS.bradycardia) {
+    add('bradycardia', 'attention', `Heart rate ${inputs.hr.toFixed(0)} bpm is below ${THRESHOLDS.bradycardia} bpm (marked bradycardia).`);
+  }
+  if (inputs.hr !== null && inputs.hr > THRESHOLDS.tachycardia) {
+    add('tachycardia', 'attention', `Heart rate ${inputs.hr.toFixed(0)} bpm is above ${THRESHOLDS.tachycardia} bpm (tachycardia).`);
+  }
+  return flags;
+}

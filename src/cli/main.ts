@@ -1,0 +1,103 @@
+/**
+ * The command line: thin. Parses options, gathers inputs, calls the pure
+ * core and hands the result to a renderer. Heavy modules load only when the
+ * command that needs them runs.
+ */
+import { Command, CommanderError } from 'commander';
+import { InputError } from '../errors.js';
+import { toolVersion } from './package-info.js';
+import { addMeasurementOptions } from './measurement-options.js';
+
+export const EXIT_BAD_INPUT = 2;
+export const EXIT_CANCELLED = 130;
+
+/** Raised when the user leaves a prompt with Ctrl-C: the CLI exits quietly. */
+export class Cancelled extends Error {
+  constructor() {
+    super('cancelled');
+    this.name = 'Cancelled';
+  }
+}
+
+export function buildProgram(): Command {
+  const program = new Command();
+  program
+    .name('elastimate')
+    .description('Ventricular–arterial coupling from echocardiography and cuff pressure: Pes, Ea, single-beat Ees, Ea/Ees.\nResearch use only; not a diagnosis.')
+    .version(toolVersion(), '-V, --version', 'print the version')
+    .showHelpAfterError('(run with --help for usage)')
+    .exitOverride()
+    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+
+  const assess = program
+    .command('assess')
+    .description('assess one visit from flags, a visit file or prompts');
+  addMeasurementOptions(assess);
+  assess
+    .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
+    .option('--no-input', 'never prompt: missing inputs are an error')
+    .option('--json', 'print one JSON object (docs/json-output.md)')
+    .option('--recheck', 'show the method variants side by side')
+    .action(async (opts: Record<string, unknown>, cmd: Command) => {
+      const { runAssess } = await import('./assess-command.js');
+      await runAssess(opts, inputFileOf(cmd));
+    });
+
+  program
+    .command('demo')
+    .description('the full report for a built-in invented subject, no prompts')
+    .option('--json', 'print JSON instead of the report')
+    .action(async (opts: Record<string, unknown>) => {
+      const { runDemo } = await import('./demo-command.js');
+      await runDemo(opts);
+    });
+
+  return program;
+}
+
+/**
+ * `--input <file>` and `--no-input` share commander's `input` property; the
+ * file name is kept from the option event so `--no-input` cannot erase it.
+ */
+const inputFiles = new WeakMap<Command, string>();
+function inputFileOf(cmd: Command): string | undefined {
+  return inputFiles.get(cmd);
+}
+function trackInputFile(program: Command): void {
+  for (const cmd of program.commands) {
+    cmd.on('option:input', (value: unknown) => {
+      if (typeof value === 'string') inputFiles.set(cmd, value);
+    });
+    trackInputFile(cmd);
+  }
+}
+
+export async function main(argv: string[]): Promise<number> {
+  const program = buildProgram();
+  trackInputFile(program);
+  try {
+    await program.parseAsync(argv);
+    return typeof process.exitCode === 'number' ? process.exitCode : 0;
+  } catch (err) {
+    return reportError(err);
+  }
+}
+
+export function reportError(err: unknown): number {
+  if (err instanceof CommanderError) {
+    if (err.code === 'commander.helpDisplayed' || err.code === 'commander.version' || err.code === 'commander.help') return 0;
+    // commander has already printed its message.
+    return EXIT_BAD_INPUT;
+  }
+  if (err instanceof InputError) {
+    process.stderr.write(`elastimate: ${err.message.split('\n').join('\nelastimate: ')}\n`);
+    return EXIT_BAD_INPUT;
+  }
+  if (err instanceof Cancelled || (err instanceof Error && err.name === 'ExitPromptError')) {
+    process.stderr.write('\n');
+    return EXIT_CANCELLED;
+  }
+  const message = err instanceof Error ? err.message : String(err);
+  process.stderr.write(`elastimate: internal error: ${message}\nPlease report this with the command you ran.\n`);
+  return 1;
+}

@@ -1,0 +1,39 @@
+/**
+ * The `--json` view: a public contract for pipelines, documented in
+ * docs/json-output.md. Keys are stable; values are numbers or null, never
+ * NaN, Infinity or undefined.
+ */
+import type { Assessment } from '../assessment/assess.js';
+
+export const JSON_FORMAT = 'elastimate-assessment';
+export const JSON_FORMAT_VERSION = 1;
+
+export function assessmentToJson(a: Assessment, toolVersion: string): Record<string, unknown> {
+  const inputs = { ...a.inputs } as Record<string, unknown>;
+  return {
+    format: JSON_FORMAT,
+    formatVersion: JSON_FORMAT_VERSION,
+    tool: { name: 'elastimate', version: toolVersion },
+    methodsVersion: a.methodsVersion,
+    inputs,
+    inputUnits: INPUT_UNITS,
+    choice: a.choice,
+    results: a.results,
+    flags: a.flags,
+    caveats: a.caveats,
+    referral: a.referral,
+    pesEstimates: a.pesEstimates,
+    variants: a.variants,
+  };
+}
+
+export const INPUT_UNITS = {
+  sbp: 'mmHg', dbp: 'mmHg', sbpReadings: 'mmHg', dbpReadings: 'mmHg', hr: 'bpm', edv: 'mL', esv: 'mL', ef: '%', sv: 'mL',
+  lvotDiameter: 'cm', lvotVti: 'cm', pep: 'ms', et: 'ms', height: 'cm', weight: 'kg', age: 'years', pesMeasured: 'mmHg',
+  edp: 'mmHg', eOverEPrime: '', lvids: 'cm', pwts: 'cm',
+} as const;
+
+/** Serialise with a guard: any non-finite number becomes null. */
+export function stringifySafe(value: unknown, indent = 2): string {
+  return JSON.stringify(value, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), indent);
+}

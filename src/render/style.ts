@@ -1,0 +1,39 @@
+/**
+ * Emphasis for terminal text. The renderer receives a Style; the CLI decides
+ * whether it is coloured (a terminal, NO_COLOR unset) or plain.
+ */
+export interface Style {
+  heading(text: string): string;
+  strong(text: string): string;
+  dim(text: string): string;
+  caution(text: string): string;
+  attention(text: string): string;
+}
+
+export const plainStyle: Style = {
+  heading: (t) => t,
+  strong: (t) => t,
+  dim: (t) => t,
+  caution: (t) => t,
+  attention: (t) => t,
+};
+
+/** Whether a stream should get colour: a terminal, NO_COLOR unset, TERM not dumb. */
+export function wantsColour(stream: { isTTY?: boolean }, env: NodeJS.ProcessEnv): boolean {
+  if ('NO_COLOR' in env && env.NO_COLOR !== undefined) return false;
+  if (env.FORCE_COLOR !== undefined && env.FORCE_COLOR !== '0') return true;
+  return Boolean(stream.isTTY) && env.TERM !== 'dumb';
+}
+
+/** chalk is loaded only when colour is wanted. */
+export async function colourStyle(): Promise<Style> {
+  const { Chalk } = await import('chalk');
+  const c = new Chalk({ level: 1 });
+  return {
+    heading: (t) => c.bold.underline(t),
+    strong: (t) => c.bold(t),
+    dim: (t) => c.dim(t),
+    caution: (t) => c.yellow(t),
+    attention: (t) => c.bold.magenta(t),
+  };
+}
