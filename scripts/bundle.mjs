@@ -24,3 +24,7 @@ await build({
   // commander is CommonJS: give the ES module bundle a require of its own.
   banner: { js: "import { createRequire as __elastimateRequire } from 'node:module'; const require = __elastimateRequire(import.meta.url);" },
 });
+
+// A V8 code cache for mathjs's bundle, used when a value carries a unit (see src/units/mathjs-loader.ts).
+const { writeMathjsCodeCache } = await import('../dist/units/mathjs-loader.js');
+writeMathjsCodeCache();

@@ -4,8 +4,8 @@
  * Bare numbers never touch mathjs; text with a unit loads mathjs's single-file
  * bundle on first use (about 0.05 s) rather than its module tree (about 0.6 s).
  */
-import { createRequire } from 'node:module';
 import { InputError, showValue } from '../errors.js';
+import { loadMathjs } from './mathjs-loader.js';
 
 export type QuantityKind = 'pressure' | 'volume' | 'time' | 'rate' | 'percent' | 'length' | 'mass' | 'ratio';
 
@@ -41,8 +41,7 @@ let bundle: MathBundle | undefined;
 /** mathjs, loaded once and only when a value carries a unit. */
 export function mathjs(): MathBundle {
   if (!bundle) {
-    const require = createRequire(import.meta.url);
-    bundle = require('mathjs/lib/browser/math.js') as MathBundle;
+    bundle = loadMathjs<MathBundle>();
   }
   return bundle;
 }
@@ -71,12 +70,12 @@ export function toInternalUnit(field: string, raw: unknown, kind: QuantityKind):
   }
   if (kind === 'ratio') throw new InputError({ field, value: showValue(raw), accepted });
 
-  // Heart rate: "bpm" is the trade's word; mathjs knows it as a count per minute.
-  const normalised = kind === 'rate' ? text.replace(/\s*bpm$/i, ' /min').replace(/^([^/]*?)\s*\/\s*min$/i, '$1 /min') : text;
+  // Heart rate: "bpm" and "/min" are the trade's spellings; mathjs writes a count per minute as min^-1.
+  const normalised = kind === 'rate' ? text.replace(/\s*(bpm|\/\s*min)$/i, ' min^-1') : text;
   const math = mathjs();
   let unit: MathUnit;
   try {
-    unit = math.unit(kind === 'rate' && / \/min$/.test(normalised) ? normalised.replace(' /min', '') + ' min^-1' : normalised);
+    unit = math.unit(normalised);
   } catch {
     throw new InputError({ field, value: showValue(raw), reason: 'unknown number or unit', accepted });
   }
