@@ -65,13 +65,16 @@ export function methodVariants(inputs: VisitInputs, main: MethodChoice = default
       rows.push(row(pesMethod, source, r, 'single-beat', main));
     }
     const r = computeResults(inputs, { pesMethod, strokeVolumeSource: main.strokeVolumeSource });
-    rows.push({
-      ...row(pesMethod, main.strokeVolumeSource, r, 'Pes/ESV', main),
+    // The crude row carries its own reason only: never the single-beat one, never an undefined key.
+    const { reason: _singleBeatReason, ...crude } = row(pesMethod, main.strokeVolumeSource, r, 'Pes/ESV', main);
+    const crudeRow: MethodVariant = {
+      ...crude,
       ees: r.eesNoIntercept.value,
       eaEes: r.ea.value !== null && r.eesNoIntercept.value !== null ? r.ea.value / r.eesNoIntercept.value : null,
-      reason: r.eesNoIntercept.reason,
       isMain: false,
-    });
+    };
+    if (r.eesNoIntercept.reason) crudeRow.reason = r.eesNoIntercept.reason;
+    rows.push(crudeRow);
   }
   return rows;
 }

@@ -163,7 +163,7 @@ export function parseInputs(rawIn: unknown): VisitInputs {
     const parsed: number[] = [];
     for (const item of list) {
       try {
-        const v = toInternalUnit(f.flag, item, f.kind);
+        const v = dropConversionNoise(toInternalUnit(f.flag, item, f.kind));
         if (v < f.min || v > f.max) {
           problems.push({ field: f.flag, value: showValue(item), reason: 'outside the accepted range', accepted: `${f.label}, ${describeRange(f)}` });
         } else parsed.push(v);
@@ -238,6 +238,14 @@ export function parseInputs(rawIn: unknown): VisitInputs {
   };
 }
 
+/**
+ * Unit conversion leaves binary noise ("230 cm" → 230.00000000000003 cm), which
+ * would push a value typed at the edge of its range outside it. Twelve
+ * significant digits are far beyond any measurement's precision.
+ */
+function dropConversionNoise(x: number): number {
+  return Number(x.toPrecision(12));
+}
 function mean(xs: number[]): number {
   return xs.reduce((a, b) => a + b, 0) / xs.length;
 }

@@ -69,6 +69,10 @@ export function toInternalUnit(field: string, raw: unknown, kind: QuantityKind):
     throw new InputError({ field, value: showValue(raw), accepted });
   }
   if (kind === 'ratio') throw new InputError({ field, value: showValue(raw), accepted });
+  // A unit alone ("Hz", "dL") would read as one of that unit: a number must come first.
+  if (!/^[+-]?(\d|\.\d)/.test(text)) {
+    throw new InputError({ field, value: showValue(raw), reason: 'a number must come before the unit', accepted });
+  }
 
   // Heart rate: "bpm" and "/min" are the trade's spellings; mathjs writes a count per minute as min^-1.
   const normalised = kind === 'rate' ? text.replace(/\s*(bpm|\/\s*min)$/i, ' min^-1') : text;
