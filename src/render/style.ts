@@ -20,7 +20,8 @@ export const plainStyle: Style = {
 
 /** Whether a stream should get colour: a terminal, NO_COLOR unset, TERM not dumb. */
 export function wantsColour(stream: { isTTY?: boolean }, env: NodeJS.ProcessEnv): boolean {
-  if ('NO_COLOR' in env && env.NO_COLOR !== undefined) return false;
+  // no-color.org: a present, non-empty NO_COLOR turns colour off.
+  if (env.NO_COLOR !== undefined && env.NO_COLOR !== '') return false;
   if (env.FORCE_COLOR !== undefined && env.FORCE_COLOR !== '0') return true;
   return Boolean(stream.isTTY) && env.TERM !== 'dumb';
 }
