@@ -7,6 +7,7 @@ import { checkVisit } from './checks.js';
 import { PES_METHOD_LABEL, computeResults, defaultChoice, dopplerStrokeVolume, endSystolicPressure, type MethodChoice, type Results, type StrokeVolumeSource } from './compute.js';
 import { PES_METHODS, type PesMethod } from './fields.js';
 import type { VisitInputs } from './inputs.js';
+import { visitMechanics, type Mechanics } from './mechanics.js';
 import { METHODS_VERSION, type Flag } from './result.js';
 
 export interface MethodVariant {
@@ -35,6 +36,8 @@ export interface Assessment {
   variants: MethodVariant[];
   /** Every Pes estimate side by side. */
   pesEstimates: { method: PesMethod; label: string; value: number | null }[];
+  /** Wall stress, energetics, diastolic curve and loop geometry (src/assessment/mechanics.ts). */
+  mechanics?: Mechanics;
 }
 
 export function assess(inputs: VisitInputs): Assessment {
@@ -51,6 +54,7 @@ export function assess(inputs: VisitInputs): Assessment {
     referral: referralNote(inputs, results, flags),
     variants: methodVariants(inputs, choice),
     pesEstimates: PES_METHODS.map((m) => ({ method: m, label: PES_METHOD_LABEL[m], value: endSystolicPressure(inputs, m) })),
+    mechanics: visitMechanics(inputs, results),
   };
 }
 

@@ -64,6 +64,8 @@ export interface LoopGeometry {
   v0: number | null;
   /** Slope of the line from (EDV, 0) to (ESV, Pes): Pes / (EDV − ESV). */
   eaLineSlope: number | null;
+  /** The reported Ea (Pes / the SV that feeds Ea; differs from the slope when Doppler SV is used). */
+  ea: number | null;
   diastolicCurve: EndDiastolicCurve | null;
 }
 
@@ -98,6 +100,7 @@ export function visitMechanics(inputs: VisitInputs, results: Results): Mechanics
       ees: results.ees.value,
       v0: results.v0.value,
       eaLineSlope: results.pes.value !== null ? results.pes.value / (inputs.edv - inputs.esv) : null,
+      ea: results.ea.value,
       diastolicCurve: diastolic.curve,
     },
     afterloadNote: AFTERLOAD_NOTE,

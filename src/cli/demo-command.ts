@@ -16,4 +16,20 @@ export async function runDemo(opts: Record<string, unknown>): Promise<void> {
     recheck: true,
     title: 'elastimate demo: invented subject HT-014, hypertension-trial baseline visit',
   });
+  if (opts.json !== true) await showDemoSeries();
+}
+
+export const DEMO_SUBJECT = join(PACKAGE_ROOT, 'cases', 'cardio-oncology.subject.json');
+
+/** A follow-up series (invented subject CO-203) and the change from the first visit to the one with the lowest EF. */
+async function showDemoSeries(): Promise<void> {
+  const { readSubjectFile } = await import('../records/store.js');
+  const { printComparison, printSeries } = await import('./record-common.js');
+  const file = readSubjectFile(DEMO_SUBJECT);
+  process.stdout.write('\n' + '─'.repeat(72) + '\nelastimate demo, part 2: a follow-up series, as `elastimate record show cases/cardio-oncology.subject.json` prints it\n\n');
+  const entries = await printSeries(file, {});
+  if (entries.length < 2) return;
+  const lowest = entries.slice(1).reduce((low, e) => ((e.assessment.results.ef.value ?? Infinity) < (low.assessment.results.ef.value ?? Infinity) ? e : low));
+  process.stdout.write('─'.repeat(72) + `\nelastimate demo, part 3: \`elastimate record compare cases/cardio-oncology.subject.json 1 ${lowest.index}\`\n\n`);
+  await printComparison(file, '1', String(lowest.index), {});
 }

@@ -7,6 +7,7 @@ import { Command, CommanderError } from 'commander';
 import { InputError } from '../errors.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
+import { registerRecordCommands } from './record-commands.js';
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
@@ -38,6 +39,11 @@ export function buildProgram(): Command {
     .option('--no-input', 'never prompt: missing inputs are an error')
     .option('--json', 'print one JSON object (docs/json-output.md)')
     .option('--recheck', 'show the method variants side by side')
+    .option('--uncertainty', 'add 95 % ranges, variance shares per input and the method\'s own error, by Monte Carlo (docs/uncertainty.md)')
+    .option('--draws <n>', 'Monte Carlo draws, 1000–500000 (default 20000); implies --uncertainty')
+    .option('--seed <n>', 'seed of the Monte Carlo draws, 0–4294967295 (default 1); implies --uncertainty')
+    .option('--svg <file>', 'also write the estimated pressure–volume diagram as SVG')
+    .option('--sketch', 'also print a compact text drawing of the pressure–volume diagram')
     .action(async (opts: Record<string, unknown>, cmd: Command) => {
       const { runAssess } = await import('./assess-command.js');
       await runAssess(opts, inputFileOf(cmd));
@@ -50,6 +56,22 @@ export function buildProgram(): Command {
     .action(async (opts: Record<string, unknown>) => {
       const { runDemo } = await import('./demo-command.js');
       await runDemo(opts);
+    });
+
+  registerRecordCommands(program, inputFileOf);
+
+  program
+    .command('report')
+    .description('the case-conference report of one visit in its series: one self-contained HTML page, or Markdown with SVG files')
+    .argument('<subject-file>', 'subject file (docs/subject-file.md)')
+    .option('--visit <visit>', 'visit number (as record show prints it) or date; default the last visit')
+    .option('--out <file>', 'where to write the report, e.g. report.html or report.md')
+    .option('--format <format>', 'html or md (default from the --out file name, else html)')
+    .option('--draws <n>', 'Monte Carlo draws for the intervals, 1000–500000 (default 20000)')
+    .option('--seed <n>', 'seed of the Monte Carlo draws (default 1)')
+    .action(async (file: string, opts: Record<string, unknown>) => {
+      const { runReport } = await import('./report-command.js');
+      await runReport(file, opts);
     });
 
   return program;

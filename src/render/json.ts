@@ -4,6 +4,7 @@
  * NaN, Infinity or undefined.
  */
 import type { Assessment } from '../assessment/assess.js';
+import type { Mechanics } from '../assessment/mechanics.js';
 
 export const JSON_FORMAT = 'elastimate-assessment';
 export const JSON_FORMAT_VERSION = 1;
@@ -24,7 +25,14 @@ export function assessmentToJson(a: Assessment, toolVersion: string): Record<str
     referral: a.referral,
     pesEstimates: a.pesEstimates,
     variants: a.variants,
+    ...(a.mechanics ? { mechanics: mechanicsToJson(a.mechanics) } : {}),
   };
+}
+
+/** Wall stress, energetics, diastolic side and loop geometry under their own key (docs/report.md). */
+function mechanicsToJson(m: Mechanics): Record<string, unknown> {
+  const { diastolicCurve: _sameAsDiastolicCurve, ...loop } = m.loop;
+  return { wallStress: m.wallStress, energetics: m.energetics, diastolic: m.diastolic, loop, afterloadNote: m.afterloadNote };
 }
 
 export const INPUT_UNITS = {

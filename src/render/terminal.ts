@@ -7,6 +7,7 @@ import type { ResultKey } from '../assessment/compute.js';
 import { fieldByKey, type NumericKey } from '../assessment/fields.js';
 import type { Quantity } from '../assessment/result.js';
 import { formatNumber, formatQuantity, formatValue, pad, padLeft } from './format.js';
+import { mechanicsSections } from './mechanics-text.js';
 import { plainStyle, type Style } from './style.js';
 
 const LABEL_WIDTH = 34;
@@ -80,7 +81,7 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
     section('Recheck: the same subject under each method variant');
     out.push(...renderVariants(a, s));
   }
-  for (const extra of options.extraSections ?? []) {
+  for (const extra of [...mechanicsSections(a), ...(options.extraSections ?? [])]) {
     section(extra.title);
     out.push(...extra.lines.map((l) => '  ' + l));
   }

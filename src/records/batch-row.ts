@@ -1,0 +1,198 @@
+/**
+ * One row of a cohort spreadsheet → raw inputs → results, for `elastimate
+ * batch` (docs/batch.md). Pure and lean: per row it builds the raw inputs
+ * from the recognised cells, runs the same parseInputs and computeResults as
+ * `assess` (the numbers equal assess's `results`), the same checks, and
+ * formats the cells. mathjs loads only if a cell carries a unit.
+ *
+ * Columns are recognised by name, ignoring case and punctuation, so `lvot-vti`,
+ * `lvotVti` and `LVOT_VTI` are one column. Everything else passes through.
+ */
+import { checkVisit } from '../assessment/checks.js';
+import { computeResults } from '../assessment/compute.js';
+import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
+import { parseInputs, type RawInputs } from '../assessment/inputs.js';
+import { METHODS_VERSION } from '../assessment/result.js';
+import { InputError, showValue } from '../errors.js';
+import { flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
+
+type ColumnKind =
+  | { kind: 'number'; key: string; multiple: boolean }
+  | { kind: 'choice'; key: string; allowed: readonly string[]; flag: string }
+  | { kind: 'boolean'; key: string; flag: string };
+
+function normalise(name: string): string {
+  return name.toLowerCase().replace(/[^a-z0-9]/g, '');
+}
+
+const RECOGNISED: ReadonlyMap<string, ColumnKind> = new Map<string, ColumnKind>([
+  ...NUMERIC_FIELDS.map((f): [string, ColumnKind] => [normalise(f.key), { kind: 'number', key: f.key, multiple: f.multiple === true }]),
+  ...VALVE_FLAGS.map((v): [string, ColumnKind] => [normalise(v.key), { kind: 'boolean', key: v.key, flag: v.flag }]),
+  ['rhythm', { kind: 'choice', key: 'rhythm', allowed: RHYTHMS, flag: 'rhythm' }],
+  ['pesmethod', { kind: 'choice', key: 'pesMethod', allowed: PES_METHODS, flag: 'pes-method' }],
+  ['mapmethod', { kind: 'choice', key: 'mapMethod', allowed: MAP_METHODS, flag: 'map-method' }],
+  ['bsamethod', { kind: 'choice', key: 'bsaMethod', allowed: BSA_METHODS, flag: 'bsa-method' }],
+  ['sex', { kind: 'choice', key: 'sex', allowed: SEXES, flag: 'sex' }],
+]);
+
+const TRUE_WORDS = new Set(['1', 'true', 'yes', 'y']);
+const FALSE_WORDS = new Set(['0', 'false', 'no', 'n']);
+
+export interface BatchLayout {
+  /** The input header as read. */
+  header: string[];
+  /** Input column positions that feed the computation. */
+  recognised: { index: number; column: ColumnKind }[];
+  /** The output header: input columns, result columns, flags, notComputable, methodsVersion, error. */
+  outputHeader: string[];
+  /** Result columns renamed `<key>_result` because an input column had that name. */
+  renamed: string[];
+}
+
+/** Plan the output from the input header. Refuses empty or repeated column names. */
+export function planBatch(header: readonly string[]): BatchLayout {
+  const seen = new Map<string, number>();
+  const recognised: BatchLayout['recognised'] = [];
+  const recognisedKeys = new Map<string, string>();
+  header.forEach((raw, index) => {
+    const name = raw.trim();
+    if (name === '') {
+      throw new InputError({ field: `column ${index + 1}`, value: '', reason: 'the header cell is empty', accepted: 'a name for every column' });
+    }
+    const lower = name.toLowerCase();
+    if (seen.has(lower)) {
+      throw new InputError({ field: `column ${index + 1}`, value: showValue(name), reason: `same name as column ${seen.get(lower)! + 1}`, accepted: 'distinct column names' });
+    }
+    seen.set(lower, index);
+    const column = RECOGNISED.get(normalise(name));
+    if (column) {
+      const earlier = recognisedKeys.get(column.key);
+      if (earlier !== undefined) {
+        throw new InputError({ field: `column ${index + 1}`, value: showValue(name), reason: `names the same input as column "${earlier}"`, accepted: 'each input in one column' });
+      }
+      recognisedKeys.set(column.key, name);
+      recognised.push({ index, column });
+    }
+  });
+  if (!recognised.some((r) => r.column.key === 'sbp')) {
+    const required = NUMERIC_FIELDS.filter((f) => f.required).map((f) => f.flag).join(', ');
+    throw new InputError({ field: 'header', value: showValue(header.join(',')), reason: 'no measurement columns recognised', accepted: `columns named like the flags: ${required}, and optionally hr, ef, sv, height, weight, … (docs/batch.md)` });
+  }
+  const taken = new Set(seen.keys());
+  const trailing = [...resultColumns(taken), ...trailingColumns(taken)];
+  const clash = trailing.find((c) => taken.has(c.name.toLowerCase()));
+  if (clash) {
+    throw new InputError({ field: `column "${clash.name}"`, value: showValue(clash.name), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash.name} (rename or drop it)` });
+  }
+  return {
+    header: [...header],
+    recognised,
+    outputHeader: [...header, ...trailing.map((c) => c.name)],
+    renamed: trailing.filter((c) => c.name.endsWith('_result')).map((c) => c.name),
+  };
+}
+
+/** Raw inputs from one row's cells; empty cells are absent. */
+export function rawFromCells(layout: BatchLayout, cells: readonly string[]): RawInputs {
+  const raw: Record<string, unknown> = {};
+  for (const { index, column } of layout.recognised) {
+    const cell = (cells[index] ?? '').trim();
+    if (cell === '') continue;
+    switch (column.kind) {
+      case 'number':
+        raw[column.key] = column.multiple && cell.includes(';') ? cell.split(';').map((s) => s.trim()).filter((s) => s !== '') : cell;
+        break;
+      case 'choice': {
+        const value = cell.toLowerCase();
+        if (!column.allowed.includes(value)) throw new InputError({ field: column.flag, value: showValue(cell), accepted: column.allowed.join(', ') });
+        raw[column.key] = value;
+        break;
+      }
+      case 'boolean': {
+        const value = cell.toLowerCase();
+        if (TRUE_WORDS.has(value)) raw[column.key] = true;
+        else if (FALSE_WORDS.has(value)) raw[column.key] = false;
+        else throw new InputError({ field: column.flag, value: showValue(cell), accepted: '1/0, yes/no or true/false (empty = no)' });
+        break;
+      }
+    }
+  }
+  return raw as RawInputs;
+}
+
+/** How many result and trailing cells follow the input cells. */
+function trailingCount(layout: BatchLayout): number {
+  return layout.outputHeader.length - layout.header.length;
+}
+
+/**
+ * The output cells of one row: the input cells as read (padded or cut to the
+ * header), then results, flags, reasons, methods version and error. Never
+ * throws for bad input: the reason goes to the error column.
+ */
+export function batchRow(layout: BatchLayout, cells: readonly string[]): string[] {
+  const width = layout.header.length;
+  const out: string[] = new Array<string>(width);
+  for (let i = 0; i < width; i++) out[i] = cells[i] ?? '';
+  if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
+    return appendError(out, layout, `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}`);
+  }
+  try {
+    const inputs = parseInputs(rawFromCells(layout, cells));
+    const results = computeResults(inputs);
+    const flags = checkVisit(inputs, results);
+    for (const cell of resultCells(results)) out.push(cell);
+    out.push(flagCell(flags), notComputableCell(results), METHODS_VERSION, '');
+    return out;
+  } catch (err) {
+    if (err instanceof InputError) return appendError(out, layout, err.message.split('\n').join('; '));
+    throw err;
+  }
+}
+
+function appendError(out: string[], layout: BatchLayout, message: string): string[] {
+  const blanks = trailingCount(layout) - 2;
+  for (let i = 0; i < blanks; i++) out.push('');
+  out.push(METHODS_VERSION, message);
+  return out;
+}
+
+/**
+ * Cuts streamed CSV text at record boundaries so each piece can be parsed on
+ * its own: a line break ends a record only outside double quotes (RFC 4180:
+ * quotes inside a quoted cell come doubled, so counting them tells inside
+ * from outside). Memory holds one chunk and the unfinished record.
+ */
+export class RecordPieces {
+  private pending = '';
+  private started = false;
+
+  /** Feed text; returns the complete records so far ('' if none). */
+  push(text: string): string {
+    let all = this.pending + text;
+    if (!this.started && all.length > 0) {
+      this.started = true;
+      if (all.charCodeAt(0) === 0xfeff) all = all.slice(1); // byte-order mark
+    }
+    let inQuotes = false;
+    let end = -1;
+    for (let i = 0; i < all.length; i++) {
+      const c = all.charCodeAt(i);
+      if (c === 34) inQuotes = !inQuotes;
+      else if (c === 10 && !inQuotes) end = i;
+    }
+    if (end === -1) {
+      this.pending = all;
+      return '';
+    }
+    this.pending = all.slice(end + 1);
+    return all.slice(0, end + 1);
+  }
+
+  /** The rest at the end of the input (a last record without a line break). */
+  end(): string {
+    const rest = this.pending;
+    this.pending = '';
+    return rest;
+  }
+}

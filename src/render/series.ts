@@ -1,0 +1,288 @@
+/**
+ * Views of a subject's series: the visit table with the change from the
+ * previous visit, the explained comparison of two visits, and their JSON
+ * forms (docs/subject-file.md). Pure: data and a Style in, text or plain
+ * objects out. Numbers go through render/format.ts; JSON through stringifySafe.
+ */
+import type { Assessment } from '../assessment/assess.js';
+import { STANDING_CAVEATS } from '../assessment/caveats.js';
+import type { ChangePart, ChangeRow, Comparison } from '../records/compare.js';
+import type { SeriesEntry } from '../records/series.js';
+import type { SubjectFile } from '../records/subject-schema.js';
+import { decimalsFor, formatNumber, formatValue, pad, padLeft } from './format.js';
+import { INPUT_UNITS } from './json.js';
+import { plainStyle, type Style } from './style.js';
+import { wrap } from './terminal.js';
+
+export const SERIES_FORMAT = 'elastimate-series';
+export const COMPARISON_FORMAT = 'elastimate-comparison';
+export const SERIES_FORMAT_VERSION = 1;
+
+/** A visit as the comparison views name it. */
+export interface VisitRef {
+  index: number;
+  date: string;
+}
+
+function signed(value: number, decimals: number): string {
+  const text = formatNumber(value, decimals);
+  return value > 0 && text !== formatNumber(0, decimals) ? `+${text}` : text;
+}
+
+function percent(value: number | null): string {
+  return value === null ? '—' : `${signed(value, 0)} %`;
+}
+
+function subjectLine(file: SubjectFile, visits: number): string {
+  const s = file.subject;
+  const parts = [`subject ${s.id}`];
+  if (s.sex) parts.push(s.sex);
+  if (s.birthYear !== undefined) parts.push(`born ${s.birthYear}`);
+  if (s.height !== undefined) parts.push(`height ${typeof s.height === 'number' ? formatValue(s.height, 'cm') : s.height}`);
+  parts.push(`${visits} visit${visits === 1 ? '' : 's'}`);
+  return parts.join(' · ');
+}
+
+function methodsLine(methodsVersion: string): string {
+  return `methods ${methodsVersion}; results computed now from the stored inputs; research use only, not a diagnosis`;
+}
+
+interface Column {
+  title: string;
+  unit: string;
+  width: number;
+  cell(entry: SeriesEntry, change: Comparison | null): string;
+}
+
+function changeMark(row: ChangeRow | undefined): string {
+  if (!row || row.percentChange === null) return '';
+  const mark = (row.verdict === 'beyond-noise' ? '*' : '') + (row.noise?.exceeds ? '†' : '');
+  return ` ${signed(row.percentChange, 0)}%${mark}`;
+}
+
+function valueWithChange(key: 'ea' | 'ees' | 'eaEes' | 'pes', entry: SeriesEntry, change: Comparison | null): string {
+  const q = entry.assessment.results[key];
+  const base = formatNumber(q.value, decimalsFor(q.unit));
+  return base + (change ? changeMark(change.rows.find((r) => r.key === key)) : '');
+}
+
+const COLUMNS: Column[] = [
+  { title: '#', unit: '', width: 3, cell: (e) => String(e.index) },
+  { title: 'date', unit: '', width: 12, cell: (e) => e.date },
+  { title: 'HR', unit: 'bpm', width: 5, cell: (e) => formatNumber(e.assessment.inputs.hr, 0) },
+  { title: 'SBP/DBP', unit: 'mmHg', width: 9, cell: (e) => `${formatNumber(e.assessment.inputs.sbp, 0)}/${formatNumber(e.assessment.inputs.dbp, 0)}` },
+  { title: 'EF', unit: '%', width: 5, cell: (e) => formatNumber(e.assessment.results.ef.value, 0) },
+  { title: 'SV', unit: 'mL', width: 5, cell: (e) => formatNumber(e.assessment.results.sv.value, 0) },
+  { title: 'Pes', unit: 'mmHg', width: 11, cell: (e, c) => valueWithChange('pes', e, c) },
+  { title: 'Ea', unit: 'mmHg/mL', width: 12, cell: (e, c) => valueWithChange('ea', e, c) },
+  { title: 'Ees', unit: 'mmHg/mL', width: 12, cell: (e, c) => valueWithChange('ees', e, c) },
+  { title: 'Ea/Ees', unit: '', width: 12, cell: (e, c) => valueWithChange('eaEes', e, c) },
+];
+
+/**
+ * The series table. `changes[i]` compares entry i−1 with entry i (null for the
+ * first visit). Changes are relative to the previous visit; * marks a change
+ * beyond the least significant change.
+ */
+export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[], changes: readonly (Comparison | null)[], style: Style = plainStyle): string {
+  const s = style;
+  const out: string[] = [];
+  const methodsVersion = entries[0]?.assessment.methodsVersion ?? changes.find((c) => c)?.methodsVersion;
+  out.push(s.strong(`elastimate series: ${subjectLine(file, entries.length)}`));
+  if (methodsVersion) out.push(s.dim(methodsLine(methodsVersion)));
+  out.push('');
+  if (entries.length === 0) {
+    out.push('  No visits yet: add one with `elastimate record add`.');
+  } else {
+    const row = (cells: string[]) => '  ' + cells.map((c, i) => pad(c, COLUMNS[i]!.width)).join(' ').trimEnd();
+    out.push(s.heading(row(COLUMNS.map((c) => c.title))));
+    out.push(s.dim(row(COLUMNS.map((c) => c.unit))));
+    entries.forEach((e, i) => out.push(row(COLUMNS.map((c) => c.cell(e, changes[i] ?? null)))));
+    out.push('');
+    out.push(s.dim('  Changes are from the previous visit; * marks a change beyond the least significant change (2.77 × the repeat CV),'));
+    out.push(s.dim('  unmarked changes are within measurement noise. `elastimate record compare` explains any two visits.'));
+    if (changes.some((c) => c?.rows.some((r) => r.noise))) {
+      out.push(s.dim('  † marks a change whose 95 % interval from the propagated input error excludes no change (Monte Carlo).'));
+    }
+  }
+
+  const notes = entries.filter((e) => e.visit.note);
+  if (notes.length) {
+    out.push('');
+    out.push(s.heading('Notes'));
+    for (const e of notes) {
+      const lines = wrap((e.visit.note ?? '').replace(/\s+/g, ' '), 90);
+      lines.forEach((l, i) => out.push(`  ${i === 0 ? pad(`${e.index}`, 4) : '    '}${l}`));
+    }
+  }
+
+  const flagged = entries.filter((e) => e.assessment.flags.some((f) => f.level !== 'note'));
+  out.push('');
+  out.push(s.heading('Checks and caveats'));
+  for (const e of flagged) {
+    for (const f of e.assessment.flags.filter((x) => x.level !== 'note')) {
+      const tag = f.level === 'attention' ? s.attention('[attention]') : s.caution('[caution]  ');
+      const lines = wrap(f.message, 86);
+      lines.forEach((l, i) => out.push(`  ${i === 0 ? `${pad(String(e.index), 3)} ${tag} ` : ' '.repeat(16)}${l}`));
+    }
+  }
+  if (flagged.length === 0 && entries.length > 0) out.push('  No visit crossed a check threshold or broke a method assumption.');
+  for (const c of STANDING_CAVEATS) out.push(...wrap(c, 96).map((l, i) => `  ${i === 0 ? s.dim('•') : ' '} ${l}`));
+  out.push('');
+  return out.join('\n');
+}
+
+function ratioText(row: ChangeRow): string {
+  return `±${formatNumber(row.lsc.logLimit, 3)} in ln (+${formatNumber(row.lsc.percentUp, 0)} % / −${formatNumber(row.lsc.percentDown, 0)} %)`;
+}
+
+function noiseText(row: ChangeRow): string | null {
+  if (!row.noise) return null;
+  const d = decimalsFor(row.unit) + 1;
+  const [lo, hi] = row.noise.ci95;
+  const verdict = row.noise.exceeds ? 'excludes no change: larger than the uncertainty of the inputs' : 'includes no change: within the uncertainty of the inputs';
+  return `input uncertainty: 95 % interval of the change ${signed(lo, d)} to ${signed(hi, d)}${row.unit ? ' ' + row.unit : ''}; ${verdict}. Source: ${row.noise.source}`;
+}
+
+function shortName(row: ChangeRow): string {
+  return row.key === 'eaEes' ? 'Ea/Ees' : row.key === 'ea' ? 'Ea' : row.key === 'ees' ? 'Ees' : 'Pes';
+}
+
+/** One plain sentence per row: what changed and whether it is more than noise. */
+export function changeSentence(row: ChangeRow): string {
+  const name = shortName(row);
+  if (row.verdict === 'not-computable' || row.percentChange === null) {
+    return `${name}: the change is not computable (${row.reason ?? 'missing at one of the visits'}).`;
+  }
+  const direction = row.percentChange > 0 ? 'rose' : row.percentChange < 0 ? 'fell' : 'did not change';
+  const size = row.percentChange === 0 ? '' : ` by ${formatNumber(Math.abs(row.percentChange), 0)} %`;
+  const lsc = `the least significant change (${ratioText(row)}, repeat CV ${formatNumber(row.lsc.cv * 100, 1)} %)`;
+  let sentence =
+    row.verdict === 'beyond-noise'
+      ? `${name} ${direction}${size}: beyond ${lsc}, more than measurement noise alone would explain.`
+      : `${name} ${direction}${size}: within measurement noise, inside ${lsc}; this alone does not show a real change.`;
+  if (row.noise) {
+    sentence += row.noise.exceeds
+      ? ' The uncertainty of this subject\'s inputs also excludes no change.'
+      : ' The uncertainty of this subject\'s inputs also includes no change.';
+  }
+  return sentence;
+}
+
+function driverSentence(row: ChangeRow): string | null {
+  const parts = (row.parts ?? []).filter((p): p is ChangePart & { logChange: number } => p.logChange !== null);
+  if (!row.parts || parts.length !== row.parts.length || row.logChange === null || parts.length === 0) return null;
+  const main = [...parts].sort((x, y) => Math.abs(y.logChange) - Math.abs(x.logChange))[0]!;
+  if (Math.abs(main.logChange) < 0.005) return null;
+  const label = main.label.replace(/\s*\(.*\)$/, '');
+  return `Of the change in ln ${shortName(row)} (${signed(row.logChange, 3)}), the largest part is ${label}: ${signed(main.logChange, 3)}.`;
+}
+
+/** Plain sentences summarising a comparison. */
+export function comparisonSummary(c: Comparison): string[] {
+  const lines: string[] = [];
+  const beyond = c.rows.filter((r) => r.verdict === 'beyond-noise').map(shortName);
+  const within = c.rows.filter((r) => r.verdict === 'within-noise').map(shortName);
+  if (beyond.length === 0 && within.length > 0) {
+    lines.push(`Every change that could be computed (${within.join(', ')}) is within measurement noise (the least significant change): by this method these visits show no change larger than noise.`);
+  } else if (beyond.length > 0) {
+    lines.push(`Beyond measurement noise (the least significant change): ${beyond.join(', ')}${within.length ? `; within noise: ${within.join(', ')}` : ''}.`);
+  }
+  const checked = c.rows.filter((r) => r.noise);
+  if (checked.length > 0) {
+    const exceeding = checked.filter((r) => r.noise!.exceeds).map(shortName);
+    lines.push(
+      exceeding.length === 0
+        ? `Against the propagated uncertainty of this subject's inputs, every change checked (${checked.map(shortName).join(', ')}) is within noise too.`
+        : `Against the propagated uncertainty of this subject's inputs, ${exceeding.join(', ')} changed by more than that noise.`,
+    );
+  }
+  for (const row of c.rows) {
+    lines.push(changeSentence(row));
+    const driver = driverSentence(row);
+    if (driver) lines.push(driver);
+  }
+  return lines;
+}
+
+/** The explained change between two visits. */
+export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, style: Style = plainStyle): string {
+  const s = style;
+  const out: string[] = [];
+  out.push(s.strong(`elastimate comparison: subject ${file.subject.id}, visit ${from.index} (${from.date}) → visit ${to.index} (${to.date})`));
+  out.push(s.dim(methodsLine(c.methodsVersion)));
+  for (const row of c.rows) {
+    out.push('');
+    const d = decimalsFor(row.unit);
+    const values = `${formatNumber(row.from, d)} → ${formatNumber(row.to, d)}${row.unit ? ' ' + row.unit : ''}`;
+    out.push(s.heading(row.label));
+    if (row.logChange === null || row.difference === null) {
+      out.push(`  ${values}: change not computable (${row.reason ?? 'missing at one of the visits'})`);
+      continue;
+    }
+    const verdict = row.verdict === 'beyond-noise' ? s.attention('beyond noise') : s.dim('within noise');
+    out.push(`  ${pad(values, 30)}${pad(`${signed(row.difference, Math.min(d + 1, 3))}${row.unit ? ' ' + row.unit : ''}`, 18)}${pad(`${percent(row.percentChange)}`, 9)}Δln ${padLeft(signed(row.logChange, 3), 7)}   ${verdict}`);
+    out.push(s.dim(`  least significant change ${ratioText(row)}; repeat CV ${formatNumber(row.lsc.cv * 100, 1)} %: ${row.lsc.source}`));
+    const noise = noiseText(row);
+    if (noise) out.push(`  ${noise}`);
+    if (row.parts) {
+      out.push(`  of which (Δln, adding up to ${signed(row.logChange, 3)}):`);
+      for (const p of row.parts) {
+        out.push(`    ${pad(p.label, 46)}${p.logChange === null ? s.dim(`not computable (${p.reason ?? ''})`) : padLeft(signed(p.logChange, 3), 7)}`);
+      }
+    }
+  }
+  out.push('');
+  out.push(s.heading('In plain words'));
+  for (const line of comparisonSummary(c)) out.push(...wrap(line, 96).map((l, i) => `  ${i === 0 ? '•' : ' '} ${l}`));
+  for (const caution of c.cautions) out.push(...wrap(caution, 96).map((l, i) => `  ${i === 0 ? s.caution('!') : ' '} ${l}`));
+  for (const caveat of STANDING_CAVEATS) out.push(...wrap(caveat, 96).map((l, i) => `  ${i === 0 ? s.dim('•') : ' '} ${l}`));
+  out.push('');
+  return out.join('\n');
+}
+
+/** The JSON of one comparison (`record compare --json`). */
+export function comparisonToJson(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, toolVersion: string): Record<string, unknown> {
+  return {
+    format: COMPARISON_FORMAT,
+    formatVersion: SERIES_FORMAT_VERSION,
+    tool: { name: 'elastimate', version: toolVersion },
+    methodsVersion: c.methodsVersion,
+    subject: file.subject.id,
+    from,
+    to,
+    rows: c.rows,
+    cautions: c.cautions,
+    summary: comparisonSummary(c),
+    caveats: STANDING_CAVEATS,
+  };
+}
+
+function visitJson(e: SeriesEntry, change: Comparison | null): Record<string, unknown> {
+  const a: Assessment = e.assessment;
+  const v: Record<string, unknown> = {
+    index: e.index,
+    date: e.date,
+    entered: e.visit.inputs,
+    inputs: { ...a.inputs },
+    results: a.results,
+    flags: a.flags,
+  };
+  if (e.visit.note !== undefined) v.note = e.visit.note;
+  v.changeFromPrevious = change ? { rows: change.rows, cautions: change.cautions, summary: comparisonSummary(change) } : null;
+  return v;
+}
+
+/** The JSON of a series (`record show --json`): results in the same shape as `assess --json`. */
+export function seriesToJson(file: SubjectFile, entries: readonly SeriesEntry[], changes: readonly (Comparison | null)[], toolVersion: string, methodsVersion: string): Record<string, unknown> {
+  return {
+    format: SERIES_FORMAT,
+    formatVersion: SERIES_FORMAT_VERSION,
+    tool: { name: 'elastimate', version: toolVersion },
+    methodsVersion,
+    subject: file.subject,
+    inputUnits: INPUT_UNITS,
+    visits: entries.map((e, i) => visitJson(e, changes[i] ?? null)),
+    caveats: STANDING_CAVEATS,
+  };
+}

@@ -1,0 +1,128 @@
+import { parse } from 'csv-parse/sync';
+import { csvParseRows } from 'd3-dsv';
+import { describe, expect, it } from 'vitest';
+import { assess } from '../../src/assessment/assess.js';
+import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { parseInputs } from '../../src/assessment/inputs.js';
+import { METHODS_VERSION } from '../../src/assessment/result.js';
+import { RecordPieces, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
+import { RESULT_UNITS, csvNumber, csvText } from '../../src/render/csv.js';
+
+const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
+
+describe('batch rows', () => {
+  const layout = planBatch(HEADER);
+
+  it('recognises columns named like the flags, ignoring case and punctuation, and passes the rest through', () => {
+    expect(layout.recognised.map((r) => r.column.key)).toEqual(['sbp', 'dbp', 'hr', 'edv', 'esv', 'pep', 'et', 'lvotDiameter', 'lvotVti', 'aorticStenosis', 'rhythm']);
+    // Output: the input columns, then one column per result key named as the JSON keys, then the trailing columns.
+    expect(layout.outputHeader).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
+    expect(layout.renamed).toEqual([]);
+  });
+
+  it('computes a row exactly as assess does', () => {
+    const cells = ['P-1', '2024-01-02', '118;122', '80', '60', '120', '50', '90', '290', '2.0', '20', 'no', 'Sinus', 'ok'];
+    const raw = rawFromCells(layout, cells);
+    expect(raw).toEqual({ sbp: ['118', '122'], dbp: '80', hr: '60', edv: '120', esv: '50', pep: '90', et: '290', lvotDiameter: '2.0', lvotVti: '20', aorticStenosis: false, rhythm: 'sinus' });
+    const out = batchRow(layout, cells);
+    expect(out.slice(0, HEADER.length)).toEqual(cells);
+    const a = assess(parseInputs(raw));
+    const byName = Object.fromEntries(layout.outputHeader.map((h, i) => [h, out[i]]));
+    for (const key of RESULT_KEYS) expect(byName[key]).toBe(csvNumber(a.results[key].value, a.results[key].unit));
+    // Doppler SV from LVOT: π·(2.0/2)²·20 = 62.83 mL, which feeds Ea (Chen 2001 used Doppler SV).
+    expect(Number(byName.sv)).toBeCloseTo(Math.PI * 20, 2);
+    expect(byName.methodsVersion).toBe(METHODS_VERSION);
+    expect(byName.error).toBe('');
+  });
+
+  it('puts the reason of a bad row in the error column and leaves the results empty', () => {
+    const out = batchRow(layout, ['P-2', '', '120', '130', '60', '120', '50', '90', '290', '', '', '', '', 'dbp typo']);
+    const byName = Object.fromEntries(layout.outputHeader.map((h, i) => [h, out[i]]));
+    expect(byName.error).toBe('dbp: got 130; not below SBP 120 mmHg; accepted: DBP lower than SBP');
+    for (const key of RESULT_KEYS) expect(byName[key]).toBe('');
+    expect(byName.comment).toBe('dbp typo');
+    expect(out).toHaveLength(layout.outputHeader.length);
+  });
+
+  it('lists every missing or bad field of a row together', () => {
+    const out = batchRow(layout, ['P-3', '', 'abc', '', '60', '120', '50', '', '290', '', '', 'maybe', '', '']);
+    expect(out[out.length - 1]).toBe('aortic-stenosis: got "maybe"; accepted: 1/0, yes/no or true/false (empty = no)');
+    const out2 = batchRow(layout, ['P-3', '', 'abc', '', '60', '120', '50', '', '290', '', '', '', '', '']);
+    expect(out2[out2.length - 1]).toMatch(/dbp: missing; required.*pep: missing; required.*sbp: got "abc"/);
+  });
+
+  it('handles short rows (missing cells are empty) and refuses extra cells', () => {
+    const short = batchRow(layout, ['P-4', '', '120', '80', '60', '120', '50', '90', '290']);
+    expect(short).toHaveLength(layout.outputHeader.length);
+    expect(short[short.length - 1]).toBe('');
+    const long = batchRow(layout, [...HEADER.map(() => ''), 'surplus']);
+    expect(long[long.length - 1]).toMatch(/row has 15 cells but the header has 14/);
+  });
+
+  it('renames a result column whose name an input column already uses (sv, ef), and says so', () => {
+    const l = planBatch(['sbp', 'dbp', 'edv', 'esv', 'pep', 'et', 'sv', 'EF']);
+    expect(l.renamed).toEqual(['sv_result', 'ef_result']);
+    expect(l.outputHeader).toContain('sv_result');
+    expect(l.outputHeader.filter((h) => h === 'sv')).toHaveLength(1);
+  });
+
+  it('refuses a header with repeated, empty or unusable names', () => {
+    expect(() => planBatch(['sbp', 'dbp', 'SBP'])).toThrow(/column 3: got "SBP"; same name as column 1/);
+    expect(() => planBatch(['sbp', '', 'dbp'])).toThrow(/column 2: missing; the header cell is empty/);
+    expect(() => planBatch(['lvotVti', 'lvot-vti', 'sbp'])).toThrow(/names the same input as column "lvotVti"/);
+    expect(() => planBatch(['name', 'value'])).toThrow(/no measurement columns recognised/);
+    expect(() => planBatch(['sbp', 'sv', 'sv_result'])).toThrow(/column "sv_result".*needs this name/);
+  });
+});
+
+describe('cutting a CSV stream at record boundaries', () => {
+  const text = 'id,note\r\n1,"a, ""quoted""\r\nnote"\r\n2,plain\r\n3,"ends with ""\r\n"\r\n';
+
+  it('gives the same records as a general-purpose parser (csv-parse) wherever the chunks are cut', () => {
+    const reference = parse(text, { relax_column_count: true }) as string[][];
+    for (let size = 1; size <= text.length; size++) {
+      const pieces = new RecordPieces();
+      const rows: string[][] = [];
+      for (let i = 0; i < text.length; i += size) {
+        const piece = pieces.push(text.slice(i, i + size));
+        if (piece) rows.push(...csvParseRows(piece));
+      }
+      const rest = pieces.end();
+      if (rest) rows.push(...csvParseRows(rest));
+      expect(rows).toEqual(reference);
+    }
+  });
+
+  it('drops a byte-order mark and keeps a last record without a line break', () => {
+    const pieces = new RecordPieces();
+    expect(pieces.push('\ufeffsbp,dbp\n120,80')).toBe('sbp,dbp\n');
+    expect(pieces.end()).toBe('120,80');
+  });
+});
+
+describe('CSV cells', () => {
+  it('writes numbers with two decimals more than the report, trailing zeros dropped, never NaN', () => {
+    expect(csvNumber(108 / 70, 'mmHg/mL')).toBe('1.5429');
+    expect(csvNumber(108, 'mmHg')).toBe('108');
+    expect(csvNumber(-27.789, 'mL')).toBe('-27.79');
+    expect(csvNumber(0.236842, '')).toBe('0.23684');
+    expect(csvNumber(0.000004, '')).toBe('0');
+    expect(csvNumber(-0.0001, 'mmHg')).toBe('0');
+    expect(csvNumber(0.05, 'mmHg')).toBe('0.05');
+    expect(csvNumber(null, 'mL')).toBe('');
+    expect(csvNumber(Number.NaN, 'mL')).toBe('');
+    expect(csvNumber(Number.POSITIVE_INFINITY, 'mL')).toBe('');
+  });
+
+  it('quotes cells as RFC 4180 asks, with CRLF line ends, readable by csv-parse', () => {
+    const rows = [['a', 'b,c', 'say "hi"', 'two\nlines', '']];
+    const text = csvText(rows);
+    expect(text).toBe('a,"b,c","say ""hi""","two\nlines",\r\n');
+    expect(parse(text)).toEqual(rows);
+  });
+
+  it('knows the unit of every result key (checked against computed results)', () => {
+    const a = assess(parseInputs({ sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, pep: 90, et: 290, height: 170, weight: 70 }));
+    for (const key of RESULT_KEYS) expect(RESULT_UNITS[key], key).toBe(a.results[key].unit);
+  });
+});
