@@ -106,7 +106,7 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     expect(part(pes, 'ea')).toBeCloseTo(Math.LN2, 10);
     expect(part(pes, 'strokeVolume')).toBeCloseTo(-Math.LN2, 10);
     expect(changeSentence(ea)).toMatch(/^Ea rose by 100 %: beyond the least significant change/);
-    expect(comparisonSummary(cc)[0]).toMatch(/^Beyond measurement noise: Ea/);
+    expect(comparisonSummary(cc)[0]).toMatch(/^Beyond measurement noise \(the least significant change\): Ea/);
   });
 
   it('says plainly when every change is within measurement noise', () => {
@@ -152,7 +152,8 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     row(c2, 'ees').noise = { ci95: [-0.2, 0.5], exceeds: false, source: 'Monte Carlo, 20000 draws' };
     const file: SubjectFile = { format: 'elastimate-subject', schemaVersion: 1, subject: { id: 'HT-900' }, visits: [] };
     const text = renderComparison(file, { index: 1, date: '2024-01-01' }, { index: 2, date: '2024-04-01' }, c2);
-    expect(text).toMatch(/input uncertainty: 95 % interval of the change -0.200 to \+0.500 mmHg\/mL \(Monte Carlo, 20000 draws\); includes no change/);
+    expect(text).toMatch(/input uncertainty: 95 % interval of the change -0.200 to \+0.500 mmHg\/mL; includes no change: within the uncertainty of the inputs\. Source: Monte Carlo, 20000 draws/);
+    expect(comparisonSummary(c2).join(' ')).toMatch(/every change checked \(Ees\) is within noise too/);
     expect(text).toContain(METHODS_VERSION);
     expect(text).not.toMatch(/NaN|Infinity|undefined/);
   });
