@@ -59,7 +59,7 @@ const O = OUTPUT_INDEX;
 
 /** Why Ees was not computable in a draw. */
 export const DRAW_OK = 0;
-/** A drawn input left its physical domain (a value ≤ 0, DBP ≥ SBP, ESV ≥ EDV, EF ≥ 100 %). */
+/** An input Ees needs was drawn outside its physical domain (a value ≤ 0, DBP ≥ SBP, ESV ≥ EDV for a volumetric SV or EF, EF ≥ 100 %). */
 export const DRAW_INADMISSIBLE = 1;
 /** tNd outside the window where the normalized-elastance curve is defined. */
 export const DRAW_TND_OUTSIDE = 2;
@@ -78,7 +78,6 @@ export interface KernelSetup {
   hasHr: boolean;
   hasEf: boolean;
   hasBsa: boolean;
-  hasPesMeasured: boolean;
 }
 
 export function kernelSetup(inputs: VisitInputs, choice: MethodChoice = defaultChoice(inputs)): KernelSetup {
@@ -92,8 +91,11 @@ export function kernelSetup(inputs: VisitInputs, choice: MethodChoice = defaultC
     hasHr: inputs.hr !== null,
     hasEf: inputs.ef !== null,
     hasBsa: inputs.height !== null && inputs.weight !== null,
-    hasPesMeasured: inputs.pesMeasured !== null,
   };
+}
+
+function positiveOrNaN(v: number): number {
+  return v > 0 ? v : Number.NaN;
 }
 
 /** The visit's inputs as a draw vector; absent inputs are NaN. */
@@ -112,27 +114,22 @@ export function nominalVector(inputs: VisitInputs): Float64Array {
  * Mirrors computeResults in compute.ts; composition only, no formula.
  */
 export function evaluateDraw(k: KernelSetup, x: Float64Array, out: Float64Array): number {
-  const sbp = x[S_SBP]!;
-  const dbp = x[S_DBP]!;
-  const edv = x[S_EDV]!;
-  const esv = x[S_ESV]!;
-  const pep = x[S_PEP]!;
-  const et = x[S_ET]!;
-  const hr = x[S_HR]!;
-  const efReported = x[S_EF]!;
-  // Physical domain of a draw: normal errors can push a value past it.
-  if (!(sbp > 0 && dbp > 0 && dbp < sbp && esv > 0 && edv > esv && pep > 0 && et > 0) ||
-    (k.hasHr && !(hr > 0)) ||
-    (k.hasEf && !(efReported > 0 && efReported < 100)) ||
-    (k.doppler === 1 && !(x[S_SV]! > 0)) ||
-    (k.doppler === 2 && !(x[S_LVOTD]! > 0 && x[S_VTI]! > 0)) ||
-    (k.pesMethod === 2 && !(x[S_PESM]! > 0)) ||
-    (k.hasBsa && !(x[S_HEIGHT]! > 0 && x[S_WEIGHT]! > 0))) {
-    out.fill(Number.NaN);
-    return DRAW_INADMISSIBLE;
-  }
+  // Physical domain of a draw: normal errors can push a value past it. Such a
+  // value becomes NaN, so exactly the results that depend on it are lost (a
+  // draw with ESV ≥ EDV loses volumetric SV, not Pes). Absent inputs are NaN already.
+  const sbpDrawn = x[S_SBP]!;
+  const dbpDrawn = x[S_DBP]!;
+  const pressuresOk = sbpDrawn > 0 && dbpDrawn > 0 && dbpDrawn < sbpDrawn;
+  const sbp = pressuresOk ? sbpDrawn : Number.NaN;
+  const dbp = pressuresOk ? dbpDrawn : Number.NaN;
+  const esv = positiveOrNaN(x[S_ESV]!);
+  const edv = x[S_EDV]! > esv ? x[S_EDV]! : Number.NaN;
+  const pep = positiveOrNaN(x[S_PEP]!);
+  const et = positiveOrNaN(x[S_ET]!);
+  const hr = positiveOrNaN(x[S_HR]!);
+  const efReported = x[S_EF]! < 100 ? positiveOrNaN(x[S_EF]!) : Number.NaN;
 
-  const pes = k.pesMethod === 0 ? endSystolicPressureFromSystolic(sbp) : k.pesMethod === 1 ? endSystolicPressureWeighted(sbp, dbp) : k.hasPesMeasured ? x[S_PESM]! : Number.NaN;
+  const pes = k.pesMethod === 0 ? endSystolicPressureFromSystolic(sbp) : k.pesMethod === 1 ? endSystolicPressureWeighted(sbp, dbp) : positiveOrNaN(x[S_PESM]!);
   out[O.pes] = pes;
   const map = k.meaney ? meanArterialPressureMeaney(sbp, dbp) : meanArterialPressure(sbp, dbp);
   out[O.map] = map;
@@ -140,7 +137,7 @@ export function evaluateDraw(k: KernelSetup, x: Float64Array, out: Float64Array)
 
   const svVolumetric = strokeVolumeFromVolumes(edv, esv);
   out[O.svVolumetric] = svVolumetric;
-  const svDoppler = k.doppler === 1 ? x[S_SV]! : k.doppler === 2 ? strokeVolumeDoppler(x[S_LVOTD]!, x[S_VTI]!) : Number.NaN;
+  const svDoppler = k.doppler === 1 ? positiveOrNaN(x[S_SV]!) : k.doppler === 2 ? strokeVolumeDoppler(positiveOrNaN(x[S_LVOTD]!), positiveOrNaN(x[S_VTI]!)) : Number.NaN;
   out[O.svDoppler] = svDoppler;
   const sv = k.useDoppler ? svDoppler : svVolumetric;
   out[O.sv] = sv;
@@ -152,7 +149,9 @@ export function evaluateDraw(k: KernelSetup, x: Float64Array, out: Float64Array)
 
   const co = k.hasHr ? cardiacOutput(sv, hr) : Number.NaN;
   out[O.co] = co;
-  const bsa = k.hasBsa ? (k.dubois ? bodySurfaceAreaDuBois(x[S_HEIGHT]!, x[S_WEIGHT]!) : bodySurfaceAreaMosteller(x[S_HEIGHT]!, x[S_WEIGHT]!)) : Number.NaN;
+  const height = positiveOrNaN(x[S_HEIGHT]!);
+  const weight = positiveOrNaN(x[S_WEIGHT]!);
+  const bsa = k.hasBsa ? (k.dubois ? bodySurfaceAreaDuBois(height, weight) : bodySurfaceAreaMosteller(height, weight)) : Number.NaN;
   out[O.bsa] = bsa;
   out[O.ci] = k.hasHr && k.hasBsa ? cardiacIndex(co, bsa) : Number.NaN;
   const tpr = k.hasHr ? totalPeripheralResistance(map, co) : Number.NaN;
@@ -169,15 +168,17 @@ export function evaluateDraw(k: KernelSetup, x: Float64Array, out: Float64Array)
   out[O.tNd] = tNd;
   out[O.eesNoIntercept] = endSystolicElastanceNoIntercept(pes, esv);
   out[O.eaEesFromEf] = couplingRatioFromEjectionFraction(ef / 100);
+  // Ees lost to an input outside its domain is counted as such, not as a method limit.
+  const eesInputsOk = pressuresOk && pes === pes && sv === sv && ef === ef && tNd === tNd;
   const endAvg = normalizedElastanceAverage(tNd).value;
-  if (endAvg === null || !(pes === pes)) {
+  if (endAvg === null || !eesInputsOk) {
     out[O.endAvg] = endAvg ?? Number.NaN;
     out[O.endEst] = Number.NaN;
     out[O.ees] = Number.NaN;
     out[O.eesIndexed] = Number.NaN;
     out[O.eaEes] = Number.NaN;
     out[O.v0] = Number.NaN;
-    return endAvg === null ? DRAW_TND_OUTSIDE : DRAW_EES_NOT_POSITIVE;
+    return !eesInputsOk ? DRAW_INADMISSIBLE : DRAW_TND_OUTSIDE;
   }
   out[O.endAvg] = endAvg;
   const endEst = normalizedElastanceEstimate(ef / 100, dbp, pes, endAvg);
@@ -257,21 +258,17 @@ export function quantileInPlace(a: Float64Array, n: number, p: number): number {
 }
 
 /**
- * The 2.5th and 97.5th percentiles of the first n entries of a (a may be
- * reordered), exactly as quantileInPlace gives them. For large n it first
- * brackets each order statistic with a systematic sample (the idea of
- * Floyd–Rivest selection), then selects only within the bracket; when a
- * bracket misses, it falls back to selection over the whole array.
+ * The 2.5th and 97.5th percentiles of the first n entries of a (finite
+ * values; a may be reordered), exactly as quantileInPlace gives them: see
+ * summarize. n ≥ 1.
  */
 export function interval95(a: Float64Array, n: number): [number, number] {
-  if (n >= BRACKET_MIN) {
-    const bracketed = bracketedInterval(a, n);
-    if (bracketed) return bracketed;
-  }
-  const high = quantileInPlace(a, n, 0.975);
-  return [quantileInPlace(a, n, 0.025), high];
+  // summarize compacts into its scratch array in place, so `a` can serve as both.
+  const s = summarize(a.subarray(0, n), 0, a);
+  return s ? [s.low, s.high] : [Number.NaN, Number.NaN];
 }
 
+/** Below this many draws, plain selection; above, the bracketed one-pass route. */
 const BRACKET_MIN = 20_000;
 const SAMPLE_SIZE = 2048;
 /** Half-width of each bracket in probability: about 3.5 SD of a sample quantile at p = 0.025 (√(p(1−p)/2048) ≈ 0.0035). */
@@ -279,48 +276,6 @@ const BRACKET_HALF_WIDTH = 0.012;
 const sampleBuffer = new Float64Array(SAMPLE_SIZE);
 let lowBuffer = new Float64Array(0);
 let highBuffer = new Float64Array(0);
-
-/** Both percentiles (type 7) of a[0..n), read-only, in one pass; null when a bracket misses. */
-function bracketedInterval(a: Float64Array, n: number): [number, number] | null {
-  const stride = Math.floor(n / SAMPLE_SIZE);
-  const sample = sampleBuffer;
-  for (let i = 0; i < SAMPLE_SIZE; i++) sample[i] = a[i * stride]!;
-  sample.sort();
-  const at = (q: number) => sample[Math.min(SAMPLE_SIZE - 1, Math.max(0, Math.round(q * (SAMPLE_SIZE - 1))))]!;
-  const l0 = at(0.025 - BRACKET_HALF_WIDTH);
-  const l1 = at(0.025 + BRACKET_HALF_WIDTH);
-  const h0 = at(0.975 - BRACKET_HALF_WIDTH);
-  const h1 = at(0.975 + BRACKET_HALF_WIDTH);
-  if (!(l1 < h0)) return null;
-  const size = Math.ceil(n * 0.05) + 64;
-  if (lowBuffer.length < size) {
-    lowBuffer = new Float64Array(size);
-    highBuffer = new Float64Array(size);
-  }
-  const lowBuf = lowBuffer;
-  const highBuf = highBuffer;
-  let belowLow = 0;
-  let belowHigh = 0;
-  let mLow = 0;
-  let mHigh = 0;
-  for (let i = 0; i < n; i++) {
-    const v = a[i]!;
-    if (v < h0) {
-      belowHigh++;
-      if (v < l0) belowLow++;
-      else if (v <= l1) {
-        if (mLow === size) return null;
-        lowBuf[mLow++] = v;
-      }
-    } else if (v <= h1) {
-      if (mHigh === size) return null;
-      highBuf[mHigh++] = v;
-    }
-  }
-  const low = fromBracket(lowBuf, mLow, belowLow, n, 0.025);
-  const high = fromBracket(highBuf, mHigh, belowHigh, n, 0.975);
-  return low === null || high === null ? null : [low, high];
-}
 
 /** The p-quantile from a bracket holding m values with `below` values under it; null when it misses. */
 function fromBracket(buf: Float64Array, m: number, below: number, n: number, p: number): number | null {
@@ -333,6 +288,106 @@ function fromBracket(buf: Float64Array, m: number, below: number, n: number, p: 
   let vHi = Number.POSITIVE_INFINITY;
   for (let i = lo - below + 1; i < m; i++) if (buf[i]! < vHi) vHi = buf[i]!;
   return vLo + (h - lo) * (vHi - vLo);
+}
+
+export interface Summary {
+  /** Finite values among the draws. */
+  n: number;
+  mean: number;
+  sd: number;
+  /** 2.5th and 97.5th percentiles (type 7), as interval95 gives them. */
+  low: number;
+  high: number;
+}
+
+/**
+ * Count, mean, SD and 95 % interval of the finite values in one per-draw
+ * array, NaN marking a draw where the value is not computable. For large
+ * arrays one pass does it all: a systematic sample brackets both percentiles,
+ * then the pass counts, sums (shifted by `centre`, so the sums do not cancel)
+ * and collects the two brackets. Otherwise, or when a bracket misses, the
+ * finite values are copied into `scratch` (which may be `src` itself) and
+ * selected. Null when none is finite.
+ */
+export function summarize(src: Float32Array | Float64Array, centre: number, scratch: Float64Array): Summary | null {
+  const len = src.length;
+  if (len >= BRACKET_MIN) {
+    const stride = Math.floor(len / SAMPLE_SIZE);
+    let m = 0;
+    for (let i = 0; i < SAMPLE_SIZE; i++) {
+      const v = src[i * stride]!;
+      if (v - v === 0) sampleBuffer[m++] = v;
+    }
+    if (m >= SAMPLE_SIZE / 2) {
+      const sample = sampleBuffer.subarray(0, m).sort();
+      const at = (q: number) => sample[Math.min(m - 1, Math.max(0, Math.round(q * (m - 1))))]!;
+      const l0 = at(0.025 - BRACKET_HALF_WIDTH);
+      const l1 = at(0.025 + BRACKET_HALF_WIDTH);
+      const h0 = at(0.975 - BRACKET_HALF_WIDTH);
+      const h1 = at(0.975 + BRACKET_HALF_WIDTH);
+      const size = Math.ceil(len * 0.05) + 64;
+      if (lowBuffer.length < size) {
+        lowBuffer = new Float64Array(size);
+        highBuffer = new Float64Array(size);
+      }
+      const lowBuf = lowBuffer;
+      const highBuf = highBuffer;
+      let n = 0;
+      let sum = 0;
+      let sumSq = 0;
+      let belowLow = 0;
+      let belowHigh = 0;
+      let mLow = 0;
+      let mHigh = 0;
+      let overflow = false;
+      for (let i = 0; i < len; i++) {
+        const v = src[i]!;
+        if (v - v !== 0) continue;
+        n++;
+        const d = v - centre;
+        sum += d;
+        sumSq += d * d;
+        if (v < h0) {
+          belowHigh++;
+          if (v < l0) belowLow++;
+          else if (v <= l1) {
+            if (mLow < size) lowBuf[mLow++] = v;
+            else overflow = true;
+          }
+        } else if (v <= h1) {
+          if (mHigh < size) highBuf[mHigh++] = v;
+          else overflow = true;
+        }
+      }
+      if (!overflow && l1 < h0 && n >= BRACKET_MIN) {
+        const low = fromBracket(lowBuf, mLow, belowLow, n, 0.025);
+        const high = fromBracket(highBuf, mHigh, belowHigh, n, 0.975);
+        if (low !== null && high !== null) return { n, mean: centre + sum / n, sd: Math.sqrt(sampleVariance(n, sum, sumSq)), low, high };
+      }
+    }
+  }
+  let n = 0;
+  let sum = 0;
+  let sumSq = 0;
+  for (let i = 0; i < len; i++) {
+    const v = src[i]!;
+    if (v - v !== 0) continue;
+    scratch[n++] = v;
+    const d = v - centre;
+    sum += d;
+    sumSq += d * d;
+  }
+  if (n === 0) return null;
+  const high = quantileInPlace(scratch, n, 0.975);
+  const low = quantileInPlace(scratch, n, 0.025);
+  return { n, mean: centre + sum / n, sd: Math.sqrt(sampleVariance(n, sum, sumSq)), low, high };
+}
+
+/** Sample variance from a count and sums of deviations from any fixed centre; 0 below two values. */
+export function sampleVariance(n: number, sum: number, sumSq: number): number {
+  if (n < 2) return 0;
+  const v = (sumSq - (sum * sum) / n) / (n - 1);
+  return v > 0 ? v : 0;
 }
 
 /** Hoare-style quickselect with median-of-three pivots: the k-th smallest of a[left..right]. */

@@ -7,8 +7,9 @@
  *
  * Method (docs/uncertainty.md):
  * - Each input with an error gets x = x₀ + SD·z, z standard normal, all inputs
- *   independent; draws leaving the physical domain (a value ≤ 0, DBP ≥ SBP,
- *   ESV ≥ EDV) are counted as "inadmissible", never silently dropped.
+ *   independent; a value drawn outside its physical domain (≤ 0, DBP ≥ SBP,
+ *   ESV ≥ EDV) makes the results that depend on it not computable in that
+ *   draw, and when that costs Ees the draw is counted as "inadmissible".
  * - 95 % interval: 2.5th and 97.5th percentiles over the draws in which the
  *   quantity is computable; the not-computable fraction is reported beside it.
  * - Sensitivity: one input at a time (the others at their values), the output
@@ -31,7 +32,7 @@ import { errorModelFor, type ErrorInputKey, type ErrorModel, type InputErrorSpec
 import type { VisitInputs } from './inputs.js';
 import {
   DRAW_INADMISSIBLE, DRAW_OK, DRAW_TND_OUTSIDE, OUTPUT_COUNT, OUTPUT_INDEX, SLOT, SLOT_COUNT,
-  evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, randomStreams, type KernelSetup,
+  evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, randomStreams, sampleVariance, summarize, type KernelSetup,
 } from './monte-carlo.js';
 
 export const UNCERTAINTY_DEFAULTS = { draws: 20_000, seed: 1 } as const;
@@ -66,6 +67,11 @@ export interface UncertaintyOptions {
   sensitivity?: boolean;
 }
 
+/** A whole number with thousands separators, 100000 → "100,000" (without Intl, which is slow to load). */
+export function formatCount(n: number): string {
+  return String(n).replace(/\B(?=(\d{3})+(?!\d))/g, ',');
+}
+
 /** `--draws`: an integer in DRAWS_RANGE; InputError naming `draws` otherwise. */
 export function parseDraws(raw: unknown): number {
   return parseInteger('draws', raw, DRAWS_RANGE.min, DRAWS_RANGE.max);
@@ -77,7 +83,7 @@ export function parseSeed(raw: unknown): number {
 }
 
 function parseInteger(field: string, raw: unknown, min: number, max: number): number {
-  const accepted = `a whole number from ${min.toLocaleString('en-US')} to ${max.toLocaleString('en-US')}`;
+  const accepted = `a whole number from ${formatCount(min)} to ${formatCount(max)}`;
   let v: number;
   if (typeof raw === 'number') v = raw;
   else if (typeof raw === 'string' && /^\s*\d+(\.\d+)?([eE]\+?\d+)?\s*$/.test(raw)) v = Number(raw);
@@ -193,104 +199,117 @@ function planFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel): 
  * same deviate), so every interval comes from the same draws.
  */
 function simulate(plan: Plan, draws: number, streams: RandomGenerator[], keys: readonly number[], method: { ea: number | null; calibrated: number } | null): Simulation {
-  const withMethodError = method !== null;
-  const { setup, nominalInputs, active, nominalOutputs } = plan;
-  const x = Float64Array.from(nominalInputs);
-  const out = new Float64Array(OUTPUT_COUNT);
+  const { active, nominalOutputs } = plan;
   const values: (Float32Array | null)[] = new Array<Float32Array | null>(OUTPUT_COUNT).fill(null);
   for (const j of keys) values[j] = new Float32Array(draws);
-  const stored = keys.filter((j) => values[j] !== null);
-  const status = new Uint32Array(4);
-  const z = active.map(() => new Float64Array(CHUNK));
-  const slots = Int32Array.from(active, (a) => a.slot);
-  const sds = Float64Array.from(active, (a) => a.sd);
-  const activeCount = active.length;
-  const w = new Float64Array(CHUNK);
-  const combinedEes = withMethodError ? new Float32Array(draws) : null;
-  const combinedEaEes = withMethodError ? new Float32Array(draws) : null;
-  const onlyEes = withMethodError ? new Float32Array(draws) : null;
-  const onlyEaEes = withMethodError && method.ea !== null ? new Float32Array(draws) : null;
-  const ea0 = method?.ea ?? Number.NaN;
-  const calibrated = method?.calibrated ?? Number.NaN;
-  const iEa = OUTPUT_INDEX.ea;
-  const iEes = OUTPUT_INDEX.ees;
-  const iEaEes = OUTPUT_INDEX.eaEes;
-  const { slope, intercept, see } = CHEN_CALIBRATION;
-  let above = 0;
-  let ratioCount = 0;
-  let aboveCombined = 0;
-  let combinedCount = 0;
-
+  const withMethodError = method !== null;
+  const run: RunState = {
+    plan,
+    x: Float64Array.from(plan.nominalInputs),
+    out: new Float64Array(OUTPUT_COUNT),
+    values,
+    stored: Int32Array.from(keys.filter((j) => values[j] !== null)),
+    status: new Uint32Array(4),
+    z: active.map(() => new Float64Array(CHUNK)),
+    slots: Int32Array.from(active, (a) => a.slot),
+    sds: Float64Array.from(active, (a) => a.sd),
+    w: new Float64Array(CHUNK),
+    combinedEes: withMethodError ? new Float32Array(draws) : null,
+    combinedEaEes: withMethodError ? new Float32Array(draws) : null,
+    onlyEes: withMethodError ? new Float32Array(draws) : null,
+    onlyEaEes: withMethodError && method.ea !== null ? new Float32Array(draws) : null,
+    ea0: method?.ea ?? Number.NaN,
+    calibrated: method?.calibrated ?? Number.NaN,
+    counts: new Float64Array(4),
+  };
   for (let start = 0; start < draws; start += CHUNK) {
     const n = Math.min(CHUNK, draws - start);
-    for (let a = 0; a < activeCount; a++) fillNormals(streams[slots[a]!]!, z[a]!, n);
-    if (withMethodError) fillNormals(streams[METHOD_STREAM]!, w, n);
-    for (let i = 0; i < n; i++) {
-      for (let a = 0; a < activeCount; a++) {
-        const s = slots[a]!;
-        x[s] = nominalInputs[s]! + sds[a]! * z[a]![i]!;
-      }
-      const st = evaluateDraw(setup, x, out);
-      status[st]!++;
-      const d = start + i;
-      for (let q = 0; q < stored.length; q++) {
-        const j = stored[q]!;
-        values[j]![d] = out[j]!;
-      }
-      const ratio = out[iEaEes]!;
-      if (ratio - ratio === 0) {
-        ratioCount++;
-        if (ratio > COUPLING_CUTOFF) above++;
-      }
-      if (withMethodError) {
-        const onlyInvasive = calibrated + see * w[i]!;
-        onlyEes![d] = onlyInvasive;
-        if (onlyEaEes) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
-        const ees = out[iEes]!;
-        if (ees - ees === 0) {
-          const invasive = slope * ees + intercept + see * w[i]!;
-          combinedEes![d] = invasive;
-          if (invasive > 0) {
-            const r = out[iEa]! / invasive;
-            combinedEaEes![d] = r;
-            combinedCount++;
-            if (r > COUPLING_CUTOFF) aboveCombined++;
-          } else combinedEaEes![d] = Number.NaN;
-        } else {
-          combinedEes![d] = Number.NaN;
-          combinedEaEes![d] = Number.NaN;
-        }
-      }
-    }
+    for (let a = 0; a < run.slots.length; a++) fillNormals(streams[run.slots[a]!]!, run.z[a]!, n);
+    if (withMethodError) fillNormals(streams[METHOD_STREAM]!, run.w, n);
+    runChunk(run, start, n);
   }
-  return { draws, values, nominal: nominalOutputs, status, above, ratioCount, aboveCombined, combinedCount, combinedEes, combinedEaEes, onlyEes, onlyEaEes };
+  const c = run.counts;
+  return {
+    draws, values, nominal: nominalOutputs, status: run.status, above: c[0]!, ratioCount: c[1]!, aboveCombined: c[2]!, combinedCount: c[3]!,
+    combinedEes: run.combinedEes, combinedEaEes: run.combinedEaEes, onlyEes: run.onlyEes, onlyEaEes: run.onlyEaEes,
+  };
 }
 
-/** Finite entries of a per-draw array into a scratch buffer, with their count, mean and SD. */
-function compact(src: Float32Array, scratch: Float64Array, centre = 0): { n: number; mean: number; sd: number } {
-  let n = 0;
-  let sum = 0;
-  let sumSq = 0;
-  for (let i = 0; i < src.length; i++) {
-    const v = src[i]!;
-    if (v - v === 0) {
-      scratch[n++] = v;
-      // Shifted by the main value, so the sums do not cancel.
-      const d = v - centre;
-      sum += d;
-      sumSq += d * d;
+interface RunState {
+  plan: Plan;
+  x: Float64Array;
+  out: Float64Array;
+  values: (Float32Array | null)[];
+  stored: Int32Array;
+  status: Uint32Array;
+  z: Float64Array[];
+  slots: Int32Array;
+  sds: Float64Array;
+  w: Float64Array;
+  combinedEes: Float32Array | null;
+  combinedEaEes: Float32Array | null;
+  onlyEes: Float32Array | null;
+  onlyEaEes: Float32Array | null;
+  ea0: number;
+  calibrated: number;
+  /** above, ratioCount, aboveCombined, combinedCount. */
+  counts: Float64Array;
+}
+
+const I_EA = OUTPUT_INDEX.ea;
+const I_EES = OUTPUT_INDEX.ees;
+const I_EAEES = OUTPUT_INDEX.eaEes;
+
+/** Draws start … start + n − 1 of the main run, deviates already in run.z and run.w. */
+function runChunk(run: RunState, start: number, n: number): void {
+  const { x, out, values, stored, status, z, slots, sds, w, counts, combinedEes, combinedEaEes, onlyEes, onlyEaEes, ea0, calibrated } = run;
+  const setup = run.plan.setup;
+  const nominalInputs = run.plan.nominalInputs;
+  const { slope, intercept, see } = CHEN_CALIBRATION;
+  const activeCount = slots.length;
+  const storedCount = stored.length;
+  for (let i = 0; i < n; i++) {
+    for (let a = 0; a < activeCount; a++) {
+      const s = slots[a]!;
+      x[s] = nominalInputs[s]! + sds[a]! * z[a]![i]!;
+    }
+    status[evaluateDraw(setup, x, out)]!++;
+    const d = start + i;
+    for (let q = 0; q < storedCount; q++) {
+      const j = stored[q]!;
+      values[j]![d] = out[j]!;
+    }
+    const ratio = out[I_EAEES]!;
+    if (ratio - ratio === 0) {
+      counts[1]!++;
+      if (ratio > COUPLING_CUTOFF) counts[0]!++;
+    }
+    if (onlyEes !== null) {
+      const onlyInvasive = calibrated + see * w[i]!;
+      onlyEes[d] = onlyInvasive;
+      if (onlyEaEes !== null) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
+      const ees = out[I_EES]!;
+      if (ees - ees === 0) {
+        const invasive = slope * ees + intercept + see * w[i]!;
+        combinedEes![d] = invasive;
+        if (invasive > 0) {
+          const r = out[I_EA]! / invasive;
+          combinedEaEes![d] = r;
+          counts[3]!++;
+          if (r > COUPLING_CUTOFF) counts[2]!++;
+        } else combinedEaEes![d] = Number.NaN;
+      } else {
+        combinedEes![d] = Number.NaN;
+        combinedEaEes![d] = Number.NaN;
+      }
     }
   }
-  return { n, mean: n > 0 ? centre + sum / n : Number.NaN, sd: Math.sqrt(varianceOf(n, sum, sumSq)) };
 }
 
 function intervalOf(src: Float32Array | null, scratch: Float64Array): [number, number] | null {
-  if (!src) return null;
-  const { n } = compact(src, scratch);
-  if (n === 0) return null;
+  const summary = src ? summarize(src, 0, scratch) : null;
   // Draws are stored in single precision: seven significant digits are what they hold.
-  const [low, high] = interval95(scratch, n);
-  return [Number(low.toPrecision(7)), Number(high.toPrecision(7))];
+  return summary ? [Number(summary.low.toPrecision(7)), Number(summary.high.toPrecision(7))] : null;
 }
 
 /**
@@ -336,17 +355,12 @@ function oneAtATime(plan: Plan, seed: number, drawsPerInput: number): Map<number
     }
     x[slot] = nominalInputs[slot]!;
     const variance = new Float64Array(keys.length);
-    for (let q = 0; q < keys.length; q++) variance[q] = varianceOf(count[q]!, sum[q]!, sumSq[q]!);
+    for (let q = 0; q < keys.length; q++) variance[q] = sampleVariance(count[q]!, sum[q]!, sumSq[q]!);
     result.set(slot, variance);
   }
   return result;
 }
 
-function varianceOf(n: number, sum: number, sumSq: number): number {
-  if (n < 2) return 0;
-  const v = (sumSq - (sum * sum) / n) / (n - 1);
-  return v > 0 ? v : 0;
-}
 
 function sharesFrom(variances: { input: ErrorInputKey; variance: number }[]): Share[] {
   const total = variances.reduce((a, b) => a + b.variance, 0);
@@ -356,7 +370,7 @@ function sharesFrom(variances: { input: ErrorInputKey; variance: number }[]): Sh
   const keptTotal = kept.reduce((a, b) => a + b.variance, 0);
   return kept
     .map((v) => ({ input: v.input, share: v.variance / keptTotal }))
-    .sort((a, b) => b.share - a.share || a.input.localeCompare(b.input));
+    .sort((a, b) => b.share - a.share || (a.input < b.input ? -1 : a.input > b.input ? 1 : 0));
 }
 
 /** Result keys whose draws equal another key's in this run (key → the key stored). */
@@ -396,9 +410,9 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
   for (const j of keys) {
     const key = RESULT_KEYS[j]!;
     const value = results[key].value as number;
-    const { n, mean, sd } = compact(sim.values[j]!, scratch, value);
-    if (n === 0) continue;
-    const [low, high] = interval95(scratch, n);
+    const summary = summarize(sim.values[j]!, value, scratch);
+    if (summary === null) continue;
+    const { n, mean, sd, low, high } = summary;
     outputs[key] = {
       value,
       mean,
@@ -540,7 +554,7 @@ export function changeUncertainty(first: VisitInputs, second: VisitInputs, optio
   const [a, b] = runs as [(typeof runs)[number], (typeof runs)[number]];
   const scratch = new Float64Array(draws);
   const changes = {} as Record<ChangeKey, ChangeNoise>;
-  const source = `Monte Carlo, ${draws.toLocaleString('en-US')} independent draws per visit, seed ${seed}; input measurement error only (docs/uncertainty.md)`;
+  const source = `Monte Carlo, ${formatCount(draws)} independent draws per visit, seed ${seed}; input measurement error only (docs/uncertainty.md)`;
   for (const key of CHANGE_KEYS) {
     const j = OUTPUT_INDEX[key];
     const a0 = a.results[key].value;

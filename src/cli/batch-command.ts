@@ -138,6 +138,8 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     }
   } catch (err) {
     input.destroy();
+    // The reader of standard output went away (e.g. `| head`): stop quietly, as Unix tools do.
+    if (!tempPath && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
     if (tempPath) {
       output.destroy();
       rmSync(tempPath, { force: true });

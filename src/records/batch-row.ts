@@ -11,7 +11,7 @@
 import { checkVisit } from '../assessment/checks.js';
 import { computeResults } from '../assessment/compute.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
-import { parseInputs, type RawInputs } from '../assessment/inputs.js';
+import { parseCheckedInputs, type RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
 import { flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
@@ -132,13 +132,13 @@ function trailingCount(layout: BatchLayout): number {
  */
 export function batchRow(layout: BatchLayout, cells: readonly string[]): string[] {
   const width = layout.header.length;
-  const out: string[] = new Array<string>(width);
-  for (let i = 0; i < width; i++) out[i] = cells[i] ?? '';
+  const out: string[] = cells.length === width ? cells.slice() : cells.slice(0, width);
+  while (out.length < width) out.push('');
   if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
     return appendError(out, layout, `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}`);
   }
   try {
-    const inputs = parseInputs(rawFromCells(layout, cells));
+    const inputs = parseCheckedInputs(rawFromCells(layout, cells));
     const results = computeResults(inputs);
     const flags = checkVisit(inputs, results);
     for (const cell of resultCells(results)) out.push(cell);

@@ -6,7 +6,7 @@
 import type { Assessment } from '../assessment/assess.js';
 import type { ResultKey } from '../assessment/compute.js';
 import type { ErrorInputKey } from '../assessment/error-model.js';
-import { withIntervals, type Share, type UncertaintyReport } from '../assessment/uncertainty.js';
+import { formatCount, withIntervals, type Share, type UncertaintyReport } from '../assessment/uncertainty.js';
 import { decimalsFor, formatNumber, formatValue, pad } from './format.js';
 import { assessmentToJson } from './json.js';
 import { plainStyle, type Style } from './style.js';
@@ -33,11 +33,12 @@ const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'v0', label: 'V0' },
 ];
 
-/** A probability or fraction as a percentage: one decimal below 10 %, none above. */
+/** A probability or fraction as a percentage: one decimal near 0 % and 100 %, none between; never rounded to 0 or 100 when it is not. */
 export function percent(p: number): string {
   const v = p * 100;
   if (v > 0 && v < 0.05) return '< 0.1 %';
-  return `${formatNumber(v, v < 10 ? 1 : 0)} %`;
+  if (v < 100 && v >= 99.95) return '> 99.9 %';
+  return `${formatNumber(v, v < 10 || v > 90 ? 1 : 0)} %`;
 }
 
 function range(ci: readonly [number, number] | null, unit: string): string {
@@ -67,7 +68,7 @@ export function driverAdvice(report: UncertaintyReport): string {
 export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: Style = plainStyle): { title: string; lines: string[] } {
   const lines: string[] = [];
   const r = a.results;
-  lines.push(s.dim(`Monte Carlo, ${report.draws.toLocaleString('en-US')} draws, seed ${report.seed}; 95 % ranges are the 2.5th–97.5th percentiles over the draws in which each value is computable.`));
+  lines.push(s.dim(`Monte Carlo, ${formatCount(report.draws)} draws, seed ${report.seed}; 95 % ranges are the 2.5th–97.5th percentiles over the draws in which each value is computable.`));
   lines.push(s.strong('Measurement error (inputs only):'));
   for (const row of INTERVAL_ROWS) {
     const spread = report.outputs[row.key];
@@ -79,8 +80,8 @@ export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: 
   const e = report.ees;
   lines.push(
     e.notComputableFraction > 0
-      ? `Ees not computable in ${percent(e.notComputableFraction)} of draws (an input drawn outside its physical range ${percent(e.inadmissibleInputs)}, ` +
-          `tNd outside the curve's window ${percent(e.tNdOutsideWindow)}, DBP ≤ ENd(est)·Pes ${percent(e.eesNotPositive)}); the ranges use the other draws.`
+      ? `Ees not computable in ${percent(e.notComputableFraction)} of draws: an input it needs drawn outside its physical range in ${percent(e.inadmissibleInputs)}, ` +
+          `tNd outside the curve's window in ${percent(e.tNdOutsideWindow)}, DBP not above ENd(est)·Pes in ${percent(e.eesNotPositive)}; the ranges use the other draws.`
       : 'Ees was computable in every draw.',
   );
   const c = report.coupling;
@@ -100,7 +101,7 @@ export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: 
     lines.push(`  ${pad('Ea/Ees, method error only', 36)}${range(m.eaEesMethodOnly, '')}`);
     lines.push(`  ${pad('Ea/Ees, measurement + method error', 36)}${range(m.eaEesCombined, '')}`);
   }
-  lines.push(s.strong(`Which input drives the spread (share of variance, one input at a time, ${report.sensitivityMethod.drawsPerInput.toLocaleString('en-US')} draws each):`));
+  lines.push(s.strong(`Which input drives the spread (share of variance, one input at a time, ${formatCount(report.sensitivityMethod.drawsPerInput)} draws each):`));
   lines.push(`  ${pad('Ees', 8)}${shareList(report.sensitivity.ees)}`);
   lines.push(`  ${pad('Ea/Ees', 8)}${shareList(report.sensitivity.eaEes)}`);
   lines.push(`  ${pad('Ea', 8)}${shareList(report.sensitivity.ea)}`);
@@ -193,7 +194,7 @@ export function seriesIntervalLines(entries: readonly { index: number; date: str
   const first = reports[0];
   if (!first) return lines;
   lines.push(s.heading('95 % ranges from measurement error'));
-  lines.push(s.dim(`  Monte Carlo, ${first.draws.toLocaleString('en-US')} draws per visit, seed ${first.seed}; error model and method in docs/uncertainty.md.`));
+  lines.push(s.dim(`  Monte Carlo, ${formatCount(first.draws)} draws per visit, seed ${first.seed}; error model and method in docs/uncertainty.md.`));
   entries.forEach((e, i) => {
     const report = reports[i]!;
     const r = e.assessment.results;

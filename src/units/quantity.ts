@@ -87,7 +87,10 @@ export function toInternalUnit(field: string, raw: unknown, kind: QuantityKind):
   if (!unit.equalBase(math.unit(`1 ${target}`))) {
     throw new InputError({ field, value: showValue(raw), reason: `not a ${kind} unit`, accepted });
   }
-  const value = unit.toNumber(target);
+  // Unit conversion leaves binary noise ("230 cm" → 230.00000000000003 cm), which would push a
+  // value typed at the edge of its range outside it; twelve significant digits are far beyond any
+  // measurement's precision. Bare numbers never get here, so they are never rounded.
+  const value = Number(unit.toNumber(target).toPrecision(12));
   if (!Number.isFinite(value)) throw new InputError({ field, value: showValue(raw), accepted });
   return value;
 }

@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
 import { RESULT_KEYS, computeResults, defaultChoice } from '../../src/assessment/compute.js';
 import { parseInputs, type VisitInputs } from '../../src/assessment/inputs.js';
-import { OUTPUT_COUNT, OUTPUT_INDEX, evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, quantileInPlace, randomStreams } from '../../src/assessment/monte-carlo.js';
+import { OUTPUT_COUNT, OUTPUT_INDEX, evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, quantileInPlace, randomStreams, summarize } from '../../src/assessment/monte-carlo.js';
 import { CHEN_CALIBRATION, DRAWS_RANGE, assessUncertainty, changeUncertainty, parseDraws, parseSeed, withIntervals, type Share } from '../../src/assessment/uncertainty.js';
 import { InputError } from '../../src/errors.js';
 
@@ -65,6 +65,28 @@ describe('quantiles (Hyndman–Fan type 7, the default of R and NumPy: common pr
       expect(interval95(Float64Array.from(a), n)).toEqual([q(0.025), q(0.975)]);
       expect(quantileInPlace(Float64Array.from(a), n, 0.5)).toBe(q(0.5));
     }
+  });
+  it('summarize: count, mean, SD and interval of the finite draws, NaN (not computable) skipped, on both paths', () => {
+    for (const n of [500, 30_000, 120_000]) {
+      const z = fillNormals(randomStreams(5, 1)[0]!, new Float64Array(n));
+      const src = Float32Array.from(z, (v, i) => (i % 7 === 3 ? Number.NaN : 10 + 2 * v));
+      const finite = Array.from(src).filter((v) => !Number.isNaN(v));
+      const sorted = Float64Array.from(finite).sort();
+      const q = (p: number) => {
+        const h = (sorted.length - 1) * p;
+        const lo = Math.floor(h);
+        return sorted[lo]! + (h - lo) * (sorted[lo + 1]! - sorted[lo]!);
+      };
+      const mean = finite.reduce((a, b) => a + b, 0) / finite.length;
+      const sd = Math.sqrt(finite.reduce((a, b) => a + (b - mean) ** 2, 0) / (finite.length - 1));
+      const s = summarize(src, 10, new Float64Array(n))!;
+      expect(s.n).toBe(finite.length);
+      expect(s.low).toBe(q(0.025));
+      expect(s.high).toBe(q(0.975));
+      expect(s.mean).toBeCloseTo(mean, 10);
+      expect(s.sd).toBeCloseTo(sd, 10);
+    }
+    expect(summarize(new Float32Array(50).fill(Number.NaN), 0, new Float64Array(50))).toBeNull();
   });
   it('the normal deviates have the standard normal 2.5 % and 97.5 % points, ±1.95996 (statistical tables)', () => {
     const z = fillNormals(randomStreams(3, 1)[0]!, new Float64Array(200_000));
@@ -193,6 +215,25 @@ describe('draws in which Ees is not computable are counted, never dropped silent
     const report = assessUncertainty(inputs, { draws: 20_000 });
     expect(report.ees.tNdOutsideWindow).toBeGreaterThan(0.2);
     expect(report.ees.notComputableFraction).toBeGreaterThan(report.ees.tNdOutsideWindow - 1e-12);
+  });
+  it('an input outside its domain costs only the results that depend on it (ESV ≥ EDV loses volumetric SV, not Pes)', () => {
+    // Doppler SV and a reported EF: Ees does not depend on the volumes at all.
+    const inputs = inputsOf({ sbp: 108, dbp: 68, edv: 210, esv: 150, ef: 29, sv: 55, pep: 130, et: 240, errors: { edv: '20%', esv: '25%', sbp: 3, dbp: 3 } });
+    const report = assessUncertainty(inputs, { draws: 20_000, sensitivity: false });
+    expect(report.outputs.svVolumetric!.computableFraction).toBeLessThan(0.95);
+    expect(report.outputs.efVolumes!.computableFraction).toBe(report.outputs.svVolumetric!.computableFraction);
+    expect(report.outputs.pes!.computableFraction).toBe(1);
+    expect(report.outputs.ees!.computableFraction).toBeCloseTo(1 - report.ees.notComputableFraction, 12);
+    expect(report.ees.inadmissibleInputs).toBe(0);
+    // With volumetric SV the same draws do cost Ees, and are counted as inadmissible inputs.
+    const volumetric = assessUncertainty(inputsOf({ sbp: 108, dbp: 68, edv: 210, esv: 150, ef: 29, pep: 130, et: 240, errors: { edv: '20%', esv: '25%' } }), { draws: 20_000, sensitivity: false });
+    expect(volumetric.ees.inadmissibleInputs).toBeGreaterThan(0.05);
+  });
+  it('results that are the same draws under another name share their spread (SV used = Doppler SV; TPR in two units)', () => {
+    const report = assessUncertainty(inputsOf(FULL), { draws: 5000, sensitivity: false });
+    expect(report.outputs.svDoppler!.ci95).toEqual(report.outputs.sv!.ci95);
+    expect(report.outputs.tprDyn!.ci95[0]).toBeCloseTo(report.outputs.tpr!.ci95[0] * (1333.224 * 60) / 1000, 3);
+    expect(report.outputs.tprDyn!.value).toBe(computeResults(inputsOf(FULL)).tprDyn.value);
   });
   it('a comfortable subject: every draw computable', () => {
     expect(assessUncertainty(inputsOf(FULL), { draws: 5000 }).ees.notComputableFraction).toBe(0);

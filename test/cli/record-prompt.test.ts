@@ -1,0 +1,96 @@
+/**
+ * `record add` at a terminal: missing inputs are asked for, and what rarely changes (height,
+ * weight, rhythm, valve findings) is offered from the previous visit. Driven in a pseudo-terminal
+ * by test/cli/fixtures/pty-run.py, as a person would answer; needs dist/ (`npm run build`).
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { suggestionsFrom } from '../../src/cli/record-add-command.js';
+import type { SubjectFile } from '../../src/records/subject-schema.js';
+import { BIN, FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild } from './fixtures/run-cli.js';
+
+const DRIVER = join(ROOT, 'test', 'cli', 'fixtures', 'pty-run.py');
+const ENTER = '\r';
+const ANSI = /\x1b\[[0-9;?]*[ -/]*[@-~]|\x1b\][^\x07]*\x07|\x1b[()][A-Za-z0-9]|\x1b[=>78]/g;
+
+function ptyUnavailable(): string | null {
+  const probe = spawnSync('python3', ['-c', 'import os, pty; m, s = os.openpty(); os.close(m); os.close(s)'], { encoding: 'utf8', timeout: 10_000 });
+  if (probe.error) return `python3 not runnable (${probe.error.message})`;
+  if (probe.status !== 0) return 'cannot open a pseudo-terminal';
+  return null;
+}
+const unavailable = ptyUnavailable();
+
+function runInPty(args: string[], steps: { expect?: string; send?: string }[]): Promise<{ screen: string; exitCode: number | null; failedStep: number | null; reason: string }> {
+  const env: NodeJS.ProcessEnv = { ...process.env, TERM: 'xterm-256color' };
+  delete env.FORCE_COLOR;
+  delete env.NO_COLOR;
+  return new Promise((resolve, reject) => {
+    const child = spawn('python3', [DRIVER, JSON.stringify(steps), '--', process.execPath, BIN, ...args], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    let err = '';
+    child.stdout.setEncoding('utf8').on('data', (d: string) => (out += d));
+    child.stderr.setEncoding('utf8').on('data', (d: string) => (err += d));
+    const timer = setTimeout(() => child.kill('SIGKILL'), 90_000);
+    child.on('error', reject);
+    child.on('close', () => {
+      clearTimeout(timer);
+      try {
+        resolve({ screen: out.replace(ANSI, ''), ...(JSON.parse(err.trim().split('\n').pop() ?? '') as { exitCode: number | null; failedStep: number | null; reason: string }) });
+      } catch {
+        reject(new Error(`pty driver failed: ${err}`));
+      }
+    });
+  });
+}
+
+const previous: SubjectFile = {
+  format: 'elastimate-subject',
+  schemaVersion: 1,
+  subject: { id: 'HF-077', sex: 'male' },
+  visits: [
+    { date: '2024-01-15', inputs: { sbp: 104, dbp: 66, hr: 84, edv: 210, esv: 150, pep: 128, et: 242, height: 181, weight: 92, rhythm: 'atrial-fibrillation', mitralRegurgitation: true } },
+  ],
+};
+
+describe('suggestions for the next visit', () => {
+  it('offers the last visit\'s height, weight, rhythm, valve findings and the subject\'s sex, nothing that changes with each visit', () => {
+    expect(suggestionsFrom(previous)).toEqual({ height: 181, weight: 92, rhythm: 'atrial-fibrillation', mitralRegurgitation: true, sex: 'male' });
+    expect(suggestionsFrom(null)).toEqual({});
+  });
+});
+
+describe.skipIf(unavailable !== null)(`record add at a terminal${unavailable ? ` (skipped: ${unavailable})` : ''}`, () => {
+  let dir: string;
+  beforeAll(() => {
+    requireBuild();
+    dir = mkdtempSync(join(tmpdir(), 'elastimate-record-pty-'));
+  });
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it('asks only for what is missing and takes the previous visit\'s height, weight, rhythm and valves on Enter', async () => {
+    const path = join(dir, 'hf-077.subject.json');
+    writeFileSync(path, JSON.stringify(previous), { mode: 0o600 });
+    const run = await runInPty(['record', 'add', path, '--date', '2024-04-15', '--sbp', '108', '--dbp', '68', '--hr', '80', '--edv', '205', '--esv', '145', '--sv', '58', '--pep', '124'], [
+      { expect: 'Rhythm during the echo', send: ENTER },
+      { expect: 'Reported ejection fraction (in %', send: ENTER },
+      { expect: 'Ejection time (in ms', send: '250' + ENTER },
+      { expect: 'Valve and outflow findings', send: ENTER },
+      { expect: 'Height (in cm', send: ENTER },
+      { expect: 'Weight (in kg', send: ENTER },
+      { expect: 'Review: pick a value to correct', send: ENTER },
+      { expect: 'visit 2 of 2 on 2024-04-15' },
+    ]);
+    expect(run.reason, run.screen.slice(-3000)).toBe('');
+    expect(run.failedStep).toBeNull();
+    expect(run.exitCode).toBe(0);
+    expect(run.screen).not.toMatch(FORBIDDEN_WORDS);
+    expect(run.screen).not.toMatch(STACK_FRAME);
+    const stored = JSON.parse(readFileSync(path, 'utf8')) as SubjectFile;
+    expect(stored.visits[1]!.inputs).toMatchObject({ et: 250, height: 181, weight: 92, rhythm: 'atrial-fibrillation', mitralRegurgitation: true, sv: 58 });
+    expect(stored.visits[1]!.inputs.sex).toBeUndefined(); // sex stays with the subject
+  }, 90_000);
+});
