@@ -44,8 +44,8 @@ export const NUMERIC_FIELDS: readonly NumericField[] = [
   { key: 'pesMeasured', flag: 'pes-measured', label: 'Measured end-systolic pressure', kind: 'pressure', unit: 'mmHg', min: 40, max: 260, required: false, help: 'e.g. calibrated carotid tonometry at the dicrotic notch' },
   { key: 'edp', flag: 'edp', label: 'LV end-diastolic pressure', kind: 'pressure', unit: 'mmHg', min: 2, max: 45, required: false, help: 'measured; or give E/e′ for an estimate' },
   { key: 'eOverEPrime', flag: 'e-over-e-prime', label: 'E/e′ ratio', kind: 'ratio', unit: '', min: 3, max: 40, required: false, help: 'E/e′ with lateral e′ (as Nagueh 1997 derived it), for estimated filling pressure' },
-  { key: 'lvids', flag: 'lvids', label: 'LV end-systolic internal dimension', kind: 'length', unit: 'cm', min: 1.5, max: 8, required: false, help: 'for wall stress' },
-  { key: 'pwts', flag: 'pwts', label: 'Posterior wall thickness at end-systole', kind: 'length', unit: 'cm', min: 0.5, max: 3, required: false, help: 'for wall stress' },
+  { key: 'lvids', flag: 'lvids', label: 'LV end-systolic dimension LVIDs', kind: 'length', unit: 'cm', min: 1.5, max: 8, required: false, help: 'for wall stress' },
+  { key: 'pwts', flag: 'pwts', label: 'Posterior wall at end-systole', kind: 'length', unit: 'cm', min: 0.5, max: 3, required: false, help: 'for wall stress' },
 ];
 
 export const RHYTHMS = ['sinus', 'atrial-fibrillation', 'other'] as const;

@@ -9,7 +9,7 @@ import { InputError, showValue, type InputProblem } from '../errors.js';
 import { toInternalUnit } from '../units/quantity.js';
 import {
   BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS,
-  describeRange, type BsaMethod, type MapMethod, type NumericKey, type PesMethod, type Rhythm, type Sex,
+  describeRange, type BsaMethod, type MapMethod, type NumericField, type NumericKey, type PesMethod, type Rhythm, type Sex,
 } from './fields.js';
 
 const rawValue = z.union([z.number(), z.string()]);
@@ -133,6 +133,9 @@ function dedupe(problems: InputProblem[]): InputProblem[] {
   });
 }
 
+const REQUIRED_FIELDS: readonly NumericField[] = NUMERIC_FIELDS.filter((f) => f.required);
+const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i])) as Record<NumericKey, number>;
+
 /** Fields still missing for a computation (the required ones). */
 export function missingRequired(raw: RawInputs): string[] {
   return NUMERIC_FIELDS.filter((f) => f.required && isAbsent(raw[f.key])).map((f) => f.flag);
@@ -156,38 +159,42 @@ export function parseInputs(rawIn: unknown): VisitInputs {
  * 100,000-row batch.
  */
 export function parseCheckedInputs(raw: RawInputs): VisitInputs {
+  // Hot path of a batch (once per row): one pass over the registry, no per-field arrays or
+  // closures for single values; the problems and their order are those of the registry.
   const problems: InputProblem[] = [];
-  const missing = missingRequired(raw);
-  for (const flag of missing) {
-    const f = NUMERIC_FIELDS.find((x) => x.flag === flag)!;
-    problems.push({ field: flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
+  for (const f of REQUIRED_FIELDS) {
+    if (isAbsent(raw[f.key])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
   }
 
-  const values: Partial<Record<NumericKey, number[]>> = {};
-  for (const f of NUMERIC_FIELDS) {
+  // Per field (registry order): the mean of its readings in internal units, null when absent or refused.
+  const means: (number | null)[] = new Array<number | null>(NUMERIC_FIELDS.length);
+  let sbpReadings: number[] | undefined;
+  let dbpReadings: number[] | undefined;
+  for (let i = 0; i < NUMERIC_FIELDS.length; i++) {
+    const f = NUMERIC_FIELDS[i]!;
     const given = raw[f.key];
+    means[i] = null;
     if (isAbsent(given)) continue;
-    const list = Array.isArray(given) ? given : [given];
-    const parsed: number[] = [];
-    for (const item of list) {
-      try {
-        const v = toInternalUnit(f.flag, item, f.kind);
-        if (v < f.min || v > f.max) {
-          problems.push({ field: f.flag, value: showValue(item), reason: 'outside the accepted range', accepted: `${f.label}, ${describeRange(f)}` });
-        } else parsed.push(v);
-      } catch (err) {
-        if (err instanceof InputError) {
-          problems.push(...err.problems.map((p) => ({ ...p, accepted: `${p.accepted}; range ${describeRange(f)}` })));
-        } else throw err;
-      }
+    const list = Array.isArray(given) ? given : undefined;
+    const count = list ? list.length : 1;
+    let sum = 0;
+    let accepted = 0;
+    const parsed: number[] | undefined = f.multiple ? [] : undefined;
+    for (let j = 0; j < count; j++) {
+      const item: unknown = list ? list[j] : given;
+      const v = readValue(f, item, problems);
+      if (v === null) continue;
+      sum += v;
+      accepted++;
+      parsed?.push(v);
     }
-    if (parsed.length === list.length) values[f.key] = parsed;
+    if (accepted !== count) continue;
+    means[i] = sum / count;
+    if (f.key === 'sbp') sbpReadings = parsed;
+    else if (f.key === 'dbp') dbpReadings = parsed;
   }
 
-  const one = (k: NumericKey): number | null => {
-    const v = values[k];
-    return v && v.length > 0 ? mean(v) : null;
-  };
+  const one = (k: NumericKey): number | null => means[FIELD_INDEX[k]]!;
   const sbp = one('sbp');
   const dbp = one('dbp');
   const edv = one('edv');
@@ -212,8 +219,8 @@ export function parseCheckedInputs(raw: RawInputs): VisitInputs {
   if (problems.length > 0) throw new InputError(dedupe(problems));
 
   return {
-    sbpReadings: values.sbp ?? [],
-    dbpReadings: values.dbp ?? [],
+    sbpReadings: sbpReadings ?? [],
+    dbpReadings: dbpReadings ?? [],
     sbp: sbp as number,
     dbp: dbp as number,
     hr: one('hr'),
@@ -246,9 +253,24 @@ export function parseCheckedInputs(raw: RawInputs): VisitInputs {
   };
 }
 
-function mean(xs: number[]): number {
-  return xs.reduce((a, b) => a + b, 0) / xs.length;
+/** One reading in internal units, or null after recording why it was refused. */
+function readValue(f: NumericField, item: unknown, problems: InputProblem[]): number | null {
+  try {
+    const v = toInternalUnit(f.flag, item, f.kind);
+    if (v < f.min || v > f.max) {
+      problems.push({ field: f.flag, value: showValue(item), reason: 'outside the accepted range', accepted: `${f.label}, ${describeRange(f)}` });
+      return null;
+    }
+    return v;
+  } catch (err) {
+    if (err instanceof InputError) {
+      problems.push(...err.problems.map((p) => ({ ...p, accepted: `${p.accepted}; range ${describeRange(f)}` })));
+      return null;
+    }
+    throw err;
+  }
 }
+
 function round(x: number): number {
   return Math.round(x * 10) / 10;
 }

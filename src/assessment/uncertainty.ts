@@ -22,11 +22,11 @@
  *   (interval of invasive Ees predicted from the estimate) and combined with
  *   the measurement error in a second interval.
  */
-import type { Assessment } from './assess.js';
-import { InputError, showValue } from '../errors.js';
 import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
+import { InputError, showValue } from '../errors.js';
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 import { woodUnitsToDyn } from '../physiology/peripheral-resistance.js';
+import type { Assessment } from './assess.js';
 import { RESULT_KEYS, computeResults, defaultChoice, type MethodChoice, type ResultKey, type Results } from './compute.js';
 import { errorModelFor, type ErrorInputKey, type ErrorModel, type InputErrorSpec } from './error-model.js';
 import type { VisitInputs } from './inputs.js';
@@ -476,8 +476,9 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
     ees,
     coupling: {
       cutoff: COUPLING_CUTOFF,
-      probabilityAbove: ratioDraws > 0 ? sim.above / ratioDraws : null,
-      probabilityAboveWithMethodError: sim.combinedCount > 0 ? sim.aboveCombined / sim.combinedCount : null,
+      // Only around a main Ea/Ees: a share of the few draws that happen to be computable would mislead.
+      probabilityAbove: results.eaEes.value !== null && ratioDraws > 0 ? sim.above / ratioDraws : null,
+      probabilityAboveWithMethodError: results.eaEes.value !== null && sim.combinedCount > 0 ? sim.aboveCombined / sim.combinedCount : null,
       computableDraws: ratioDraws,
       source: 'Ea/Ees > 1.2 taken as abnormal coupling in an echo study of heart-failure patients (Cheng HM et al., Eur J Heart Fail 2008;10:1192; PubMed 19004668)',
     },

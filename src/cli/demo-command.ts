@@ -2,7 +2,7 @@
 import { join } from 'node:path';
 import { assess } from '../assessment/assess.js';
 import { parseInputs } from '../assessment/inputs.js';
-import { printAssessment } from './output.js';
+import { printAssessment, terminalStyle } from './output.js';
 import { PACKAGE_ROOT } from './package-info.js';
 import { readVisitFile } from './visit-file.js';
 
@@ -11,12 +11,19 @@ export const DEMO_VISIT = join(PACKAGE_ROOT, 'cases', 'hypertension-trial.visit.
 export async function runDemo(opts: Record<string, unknown>): Promise<void> {
   const inputs = parseInputs(readVisitFile(DEMO_VISIT));
   const result = assess(inputs);
-  await printAssessment(result, {
-    json: opts.json === true,
-    recheck: true,
-    title: 'elastimate demo: invented subject HT-014, hypertension-trial baseline visit',
-  });
-  if (opts.json !== true) await showDemoSeries();
+  const title = 'elastimate demo: invented subject HT-014, hypertension-trial baseline visit';
+  if (opts.json === true) {
+    await printAssessment(result, { json: true });
+    return;
+  }
+  // The full single-visit report: 95 % ranges from the default error model, the recheck view and the sketch.
+  const { assessUncertainty } = await import('../assessment/uncertainty.js');
+  const { renderTerminalWithUncertainty } = await import('../render/uncertainty.js');
+  const { printSketch } = await import('./diagram-options.js');
+  const report = assessUncertainty(inputs, {}, result.choice, result.results);
+  process.stdout.write(renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: true, title }) + '\n');
+  printSketch(result, false);
+  await showDemoSeries();
 }
 
 export const DEMO_SUBJECT = join(PACKAGE_ROOT, 'cases', 'cardio-oncology.subject.json');

@@ -95,6 +95,11 @@ function trackInputFile(program: Command): void {
 }
 
 export async function main(argv: string[]): Promise<number> {
+  // A reader that goes away early (`elastimate demo | head`) is not an error: stop quietly, as Unix tools do.
+  process.stdout.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code === 'EPIPE') process.exit(0);
+    throw err;
+  });
   const program = buildProgram();
   trackInputFile(program);
   try {

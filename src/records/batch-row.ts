@@ -13,8 +13,10 @@ import { computeResults } from '../assessment/compute.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
 import { parseCheckedInputs, type RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
+import type { Results } from '../assessment/compute.js';
+import type { Flag } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
-import { flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
+import { CRLF, csvCellText, csvRowText, flagCell, notComputableCell, resultCells, resultCellsText, resultColumns, trailingColumns } from '../render/csv.js';
 
 type ColumnKind =
   | { kind: 'number'; key: string; multiple: boolean }
@@ -125,29 +127,49 @@ function trailingCount(layout: BatchLayout): number {
   return layout.outputHeader.length - layout.header.length;
 }
 
+/** What one row gives: its results and flags, or why it could not be computed. */
+type RowOutcome = { results: Results; flags: Flag[]; error?: undefined } | { error: string };
+
+/**
+ * The computation of one row, exactly as `assess` does it: the raw inputs
+ * from the cells, parseCheckedInputs, computeResults and checkVisit. Never
+ * throws for bad input: the reason (one line) comes back instead.
+ */
+function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
+  const width = layout.header.length;
+  if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
+    return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}` };
+  }
+  try {
+    const inputs = parseCheckedInputs(rawFromCells(layout, cells));
+    const results = computeResults(inputs);
+    return { results, flags: checkVisit(inputs, results) };
+  } catch (err) {
+    if (err instanceof InputError) return { error: err.message.split('\n').join('; ') };
+    throw err;
+  }
+}
+
+/** The input cells as read, padded or cut to the header. */
+function inputCells(layout: BatchLayout, cells: readonly string[]): string[] {
+  const width = layout.header.length;
+  const out: string[] = cells.length === width ? cells.slice() : cells.slice(0, width);
+  while (out.length < width) out.push('');
+  return out;
+}
+
 /**
  * The output cells of one row: the input cells as read (padded or cut to the
  * header), then results, flags, reasons, methods version and error. Never
  * throws for bad input: the reason goes to the error column.
  */
 export function batchRow(layout: BatchLayout, cells: readonly string[]): string[] {
-  const width = layout.header.length;
-  const out: string[] = cells.length === width ? cells.slice() : cells.slice(0, width);
-  while (out.length < width) out.push('');
-  if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
-    return appendError(out, layout, `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}`);
-  }
-  try {
-    const inputs = parseCheckedInputs(rawFromCells(layout, cells));
-    const results = computeResults(inputs);
-    const flags = checkVisit(inputs, results);
-    for (const cell of resultCells(results)) out.push(cell);
-    out.push(flagCell(flags), notComputableCell(results), METHODS_VERSION, '');
-    return out;
-  } catch (err) {
-    if (err instanceof InputError) return appendError(out, layout, err.message.split('\n').join('; '));
-    throw err;
-  }
+  const out = inputCells(layout, cells);
+  const row = computeRow(layout, cells);
+  if (row.error !== undefined) return appendError(out, layout, row.error);
+  for (const cell of resultCells(row.results)) out.push(cell);
+  out.push(flagCell(row.flags), notComputableCell(row.results), METHODS_VERSION, '');
+  return out;
 }
 
 function appendError(out: string[], layout: BatchLayout, message: string): string[] {
@@ -155,6 +177,45 @@ function appendError(out: string[], layout: BatchLayout, message: string): strin
   for (let i = 0; i < blanks; i++) out.push('');
   out.push(METHODS_VERSION, message);
   return out;
+}
+
+/**
+ * batchRow(layout, cells) as one line of RFC 4180 text with its CRLF, the
+ * hot path of `elastimate batch`: the same cells, written straight into the
+ * line (text cells quoted by d3-dsv where needed; result cells are numbers,
+ * which never need quotes) instead of through an array per row.
+ */
+export function batchLine(layout: BatchLayout, cells: readonly string[]): string {
+  return lineOf(layout, cells, computeRow(layout, cells));
+}
+
+function lineOf(layout: BatchLayout, cells: readonly string[], row: RowOutcome): string {
+  const own = csvRowText(cells.length === layout.header.length ? cells : inputCells(layout, cells));
+  if (row.error !== undefined) return `${own}${','.repeat(trailingCount(layout) - 1)}${csvCellText(METHODS_VERSION)},${csvCellText(row.error)}${CRLF}`;
+  return `${own},${resultCellsText(row.results)},${csvCellText(flagCell(row.flags))},${csvCellText(notComputableCell(row.results))},${csvCellText(METHODS_VERSION)},${CRLF}`;
+}
+
+/** The output of a run of parsed records: CSV text, rows and rows with an error. */
+export interface BatchPiece {
+  text: string;
+  rows: number;
+  failed: number;
+}
+
+/** batchLine for each record from `from` on, skipping empty lines (a record of one empty cell). */
+export function batchRecords(layout: BatchLayout, records: readonly (readonly string[])[], from = 0): BatchPiece {
+  let text = '';
+  let rows = 0;
+  let failed = 0;
+  for (let i = from; i < records.length; i++) {
+    const cells = records[i]!;
+    if (cells.length === 1 && cells[0] === '') continue;
+    const row = computeRow(layout, cells);
+    rows++;
+    if (row.error !== undefined) failed++;
+    text += lineOf(layout, cells, row);
+  }
+  return { text, rows, failed };
 }
 
 /**

@@ -9,7 +9,7 @@
  * not computable; yes/no findings as 1/0; text as is. Never NaN, Infinity
  * or undefined.
  */
-import { csvFormatRow } from 'd3-dsv';
+import { csvFormatRow, csvFormatValue } from 'd3-dsv';
 import type { Assessment } from '../assessment/assess.js';
 import { RESULT_KEYS, type ResultKey, type Results } from '../assessment/compute.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
@@ -28,6 +28,16 @@ export function csvText(rows: readonly (readonly string[])[]): string {
   let text = '';
   for (const row of rows) text += csvFormatRow(row) + CRLF;
   return text;
+}
+
+/** One row's cells as RFC 4180 text without the line end (d3-dsv quotes where needed). */
+export function csvRowText(cells: readonly string[]): string {
+  return csvFormatRow(cells);
+}
+
+/** One cell as RFC 4180 text (d3-dsv: quoted when it holds a comma, a double quote or a line break). */
+export function csvCellText(cell: string): string {
+  return csvFormatValue(cell);
 }
 
 /** Units of the result keys (docs/json-output.md); a test checks them against computed results. */
@@ -51,27 +61,47 @@ function decimalsOf(unit: string): number {
   return d;
 }
 
+/** Decimal parts (".5", ".0427") by decimals and scaled value, written once and reused (up to 5 decimals). */
+const FRACTIONS: (string | undefined)[][] = [];
+function fractionText(decimals: number, part: number): string {
+  const scale = SCALE[decimals]!;
+  const known = FRACTIONS[decimals] ?? (scale <= 1e5 ? (FRACTIONS[decimals] = new Array<string | undefined>(scale)) : undefined);
+  let text = known?.[part];
+  if (text === undefined) {
+    const digits = String(part + scale).slice(1); // zero-padded to `decimals` digits
+    let end = digits.length;
+    while (digits.charCodeAt(end - 1) === 48) end--; // trailing zeros dropped
+    text = `.${digits.slice(0, end)}`;
+    if (known) known[part] = text;
+  }
+  return text;
+}
+
 /**
  * A number for a CSV cell: '' when missing or not finite, else rounded to two
  * decimals more than the report shows for its unit (render/format.ts
  * decimalsFor), without trailing zeros: 1.5429, 108, -27.79. Hot path of
- * `batch`: the value is scaled to a whole number, written as digits and the
- * decimal point put back, which is several times faster than toFixed.
+ * `batch`: the value is scaled to a whole number, split into its whole and
+ * decimal parts, and the decimal part's text looked up, which is several
+ * times faster than toFixed. The text is only digits, a leading minus and a
+ * decimal point, so it never needs quotes in CSV.
  */
 export function csvNumber(value: number | null | undefined, unit: string): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '';
   const decimals = decimalsOf(unit);
-  const scaled = Math.round(Math.abs(value) * SCALE[decimals]!);
+  const scale = SCALE[decimals]!;
+  const scaled = Math.round(Math.abs(value) * scale);
   if (!Number.isSafeInteger(scaled)) return formatNumber(value, 0);
   if (scaled === 0) return '0';
-  let digits = String(scaled);
-  let d = decimals;
-  while (d > 0 && digits.charCodeAt(digits.length - 1) === 48) {
-    digits = digits.slice(0, -1);
-    d--;
+  let whole = Math.floor(scaled / scale);
+  let part = scaled - whole * scale;
+  if (part < 0) {
+    // The division rounded up (values near 2⁵³ only): take one back.
+    whole -= 1;
+    part += scale;
   }
-  if (d > 0) digits = digits.length > d ? `${digits.slice(0, digits.length - d)}.${digits.slice(digits.length - d)}` : `0.${'0'.repeat(d - digits.length)}${digits}`;
-  return value < 0 ? `-${digits}` : digits;
+  const text = part === 0 ? String(whole) : String(whole) + fractionText(decimals, part);
+  return value < 0 ? `-${text}` : text;
 }
 
 /** The results whose absence is worth a reason in the `notComputable` column (the rest need an input not given). */
@@ -150,6 +180,16 @@ function inputValues(i: VisitInputs): CellValue[] {
 
 export function resultCells(r: Results): string[] {
   return RESULT_KEYS.map((key) => csvNumber(r[key].value, r[key].unit));
+}
+
+/** resultCells(r) as CSV text, the cells joined by commas (numbers never need quotes: csvNumber). */
+export function resultCellsText(r: Results): string {
+  let text = '';
+  for (let i = 0; i < RESULT_KEYS.length; i++) {
+    const q = r[RESULT_KEYS[i]!];
+    text += i === 0 ? csvNumber(q.value, q.unit) : `,${csvNumber(q.value, q.unit)}`;
+  }
+  return text;
 }
 
 export function flagCell(flags: readonly Flag[]): string {

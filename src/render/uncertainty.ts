@@ -57,6 +57,7 @@ function shareList(shares: readonly Share[], limit = 5): string {
 /** The sentence naming the measurement to repeat. */
 export function driverAdvice(report: UncertaintyReport): string {
   const d = report.driver;
+  if (!d && !report.outputs.ees) return 'Ees is not computable at these inputs (see the checks): no range for it and no measurement to repeat.';
   if (!d) return 'No input error reaches Ees or Ea/Ees: nothing to repeat.';
   const target = d.output === 'ees' ? 'Ees' : 'Ea/Ees';
   const name = INPUT_SHORT_NAMES[d.input];

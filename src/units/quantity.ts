@@ -52,16 +52,23 @@ export function mathjs(): MathBundle {
  * unknown units and units of the wrong kind.
  */
 export function toInternalUnit(field: string, raw: unknown, kind: QuantityKind): number {
+  // Fast path (every cell of a batch): a bare number, taken in the default unit.
+  if (typeof raw === 'number') {
+    if (Number.isFinite(raw)) return raw;
+  } else if (typeof raw === 'string') {
+    const text = raw.trim();
+    if (BARE_NUMBER.test(text)) return Number(text);
+  }
+  return withUnit(field, raw, kind);
+}
+
+/** toInternalUnit for everything but a bare number: text with a unit, or a refusal naming the field. */
+function withUnit(field: string, raw: unknown, kind: QuantityKind): number {
   const info = KINDS[kind];
   const accepted = `a finite number, optionally with a unit: ${info.examples}`;
-  if (typeof raw === 'number') {
-    if (!Number.isFinite(raw)) throw new InputError({ field, value: showValue(raw), accepted });
-    return raw;
-  }
-  if (typeof raw !== 'string') throw new InputError({ field, value: showValue(raw), accepted });
+  if (typeof raw === 'number' || typeof raw !== 'string') throw new InputError({ field, value: showValue(raw), accepted });
   const text = raw.trim();
   if (text === '') throw new InputError({ field, value: '', accepted });
-  if (BARE_NUMBER.test(text)) return Number(text);
 
   if (kind === 'percent') {
     const m = /^(.*?)\s*%$/.exec(text);

@@ -277,6 +277,9 @@ describe("the method's own error: Chen 2001 abstract, Ees = 0.86·Ees(sb) + 0.40
     expect(report.methodError.calibratedEes).toBeNull();
     expect(report.methodError.eesMethodOnly).toBeNull();
     expect(report.outputs.ees).toBeUndefined();
+    expect(report.coupling.probabilityAbove).toBeNull();
+    expect(report.driver).toBeNull();
+    expect(report.ees.tNdOutsideWindow).toBeGreaterThan(0.5);
   });
 });
 

@@ -57,7 +57,8 @@ function startWriter(args: string[]): Writer {
     }
   });
   const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) => {
-    child.on('exit', (code, signal) => resolve({ code, signal }));
+    // 'close', not 'exit': only then has every line the writer printed been read here.
+    child.on('close', (code, signal) => resolve({ code, signal }));
   });
   return {
     child,
@@ -113,7 +114,9 @@ describe('subject files under concurrent and crashing writers (spawned processes
       // Old or new: at most the one write in flight beyond what was confirmed.
       for (const t of confirmed) expect(tags).toContain(t);
       expect(tags.length).toBeGreaterThanOrEqual(previousCount);
-      expect(tags.length - confirmed.size).toBeLessThanOrEqual(1);
+      // Earlier rounds may each have landed one write they could not report before the kill.
+      const unconfirmedThisRound = tags.filter((t) => t.startsWith(`r${round}-`) && !confirmed.has(t));
+      expect(unconfirmedThisRound.length).toBeLessThanOrEqual(1);
       previousCount = tags.length;
     }
     // After the last kill the next writer still gets in (a stale lock expires) and the file stays whole.
