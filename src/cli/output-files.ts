@@ -59,7 +59,8 @@ function statOrNull(path: string) {
 export async function writeTextAtomically(path: string, text: string, option: string): Promise<void> {
   const writeFileAtomic = createRequire(import.meta.url)('write-file-atomic') as typeof import('write-file-atomic');
   try {
-    await writeFileAtomic(path, text, { encoding: 'utf8', fsync: true });
+    // Reports and diagrams carry a subject's data: readable by the owner only, like subject files.
+    await writeFileAtomic(path, text, { encoding: 'utf8', fsync: true, mode: 0o600 });
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code ?? (err instanceof Error ? err.message : String(err));
     throw new InputError({ field: option, value: showValue(path), reason: `could not write the file (${code})`, accepted: 'a writable file path in an existing folder' });
