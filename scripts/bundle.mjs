@@ -10,7 +10,9 @@ import { fileURLToPath } from 'node:url';
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 
 await build({
-  entryPoints: [join(root, 'dist', 'cli', 'main.js')],
+  // batch-worker.js is the worker thread of `batch`: a second entry point, so it lands beside
+  // main.js (dist/bundle/batch-worker.js) where the batch command looks for it.
+  entryPoints: [join(root, 'dist', 'cli', 'main.js'), join(root, 'dist', 'cli', 'batch-worker.js')],
   outdir: join(root, 'dist', 'bundle'),
   bundle: true,
   splitting: true,

@@ -42,7 +42,9 @@ export function describeProblem(p: InputProblem): string {
 export function showValue(v: unknown): string {
   if (v === undefined || v === null) return '';
   if (typeof v === 'string') return JSON.stringify(v);
-  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : JSON.stringify(String(v));
+  // A non-finite number never reaches the user as NaN or Infinity, not even in an error message
+  // (a JSON file may hold 1e400, which parses as Infinity): it is described in words.
+  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : Number.isNaN(v) ? 'not a number' : 'a number too large to represent';
   try {
     return JSON.stringify(v) ?? String(v);
   } catch {

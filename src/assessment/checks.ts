@@ -28,73 +28,79 @@ export const THRESHOLDS = {
   amplificationAge: 40,
 } as const;
 
-export function checkVisit(inputs: VisitInputs, r: Results): Flag[] {
+/**
+ * The flags of one visit, in a fixed order. With `messages` false (a batch,
+ * which writes only the codes) the same flags come with empty messages,
+ * saving the number formatting of every message.
+ */
+export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Flag[] {
+  const m = messages;
   const flags: Flag[] = [];
   const add = (code: string, level: Flag['level'], message: string) => flags.push({ code, level, message });
 
   // Assumptions of the single-beat method (Chen 2001; common practice).
   if (inputs.rhythm !== 'sinus') {
-    add('rhythm', 'caution', `Rhythm is ${inputs.rhythm}: the single-beat method assumes regular sinus rhythm; beat-to-beat variation makes one-beat intervals and volumes unreliable (average several beats at least).`);
+    add('rhythm', 'caution', m ? `Rhythm is ${inputs.rhythm}: the single-beat method assumes regular sinus rhythm; beat-to-beat variation makes one-beat intervals and volumes unreliable (average several beats at least).` : '');
   }
   if (inputs.aorticStenosis) {
-    add('aortic-stenosis', 'caution', 'Significant aortic stenosis: cuff pressure understates LV systolic pressure, so Pes, Ea and Ees are underestimated.');
+    add('aortic-stenosis', 'caution', m ? 'Significant aortic stenosis: cuff pressure understates LV systolic pressure, so Pes, Ea and Ees are underestimated.' : '');
   }
   if (inputs.aorticRegurgitation) {
-    add('aortic-regurgitation', 'caution', 'Significant aortic regurgitation: total and forward stroke volume differ; Ea from total SV understates the arterial load and Ees is unreliable.');
+    add('aortic-regurgitation', 'caution', m ? 'Significant aortic regurgitation: total and forward stroke volume differ; Ea from total SV understates the arterial load and Ees is unreliable.' : '');
   }
   if (inputs.mitralRegurgitation) {
-    add('mitral-regurgitation', 'caution', 'Significant mitral regurgitation: volumetric SV includes the regurgitant volume; prefer Doppler SV, and read Ees with caution.');
+    add('mitral-regurgitation', 'caution', m ? 'Significant mitral regurgitation: volumetric SV includes the regurgitant volume; prefer Doppler SV, and read Ees with caution.' : '');
   }
   if (inputs.outflowObstruction) {
-    add('outflow-obstruction', 'caution', 'LV outflow-tract obstruction: LV pressure exceeds aortic pressure, so a cuff-based Pes understates LV end-systolic pressure.');
+    add('outflow-obstruction', 'caution', m ? 'LV outflow-tract obstruction: LV pressure exceeds aortic pressure, so a cuff-based Pes understates LV end-systolic pressure.' : '');
   }
 
   const tNd = r.tNd.value;
   if (tNd !== null && r.endAvg.value !== null && (tNd < TND_TYPICAL.low || tNd > TND_TYPICAL.high)) {
-    add('tnd-window', 'caution', `tNd ${tNd.toFixed(3)} lies outside ${TND_TYPICAL.low}–${TND_TYPICAL.high}, the usual adult range; check PEP and ET before trusting Ees.`);
+    add('tnd-window', 'caution', m ? `tNd ${tNd.toFixed(3)} lies outside ${TND_TYPICAL.low}–${TND_TYPICAL.high}, the usual adult range; check PEP and ET before trusting Ees.` : '');
   }
   if (r.ees.value === null) {
-    add('ees-not-computable', 'caution', `Ees not computable: ${r.ees.reason ?? 'see inputs'}.`);
+    add('ees-not-computable', 'caution', m ? `Ees not computable: ${r.ees.reason ?? 'see inputs'}.` : '');
   } else if (r.ees.value < THRESHOLDS.eesValidated.low || r.ees.value > THRESHOLDS.eesValidated.high) {
-    add('ees-range', 'caution', `Ees ${r.ees.value.toFixed(2)} mmHg/mL is outside ${THRESHOLDS.eesValidated.low}–${THRESHOLDS.eesValidated.high} mmHg/mL, the invasive range in which the method was validated.`);
+    add('ees-range', 'caution', m ? `Ees ${r.ees.value.toFixed(2)} mmHg/mL is outside ${THRESHOLDS.eesValidated.low}–${THRESHOLDS.eesValidated.high} mmHg/mL, the invasive range in which the method was validated.` : '');
   }
   if (r.v0.value !== null && r.v0.value < -50) {
-    add('v0-negative', 'note', `Implied V0 ${r.v0.value.toFixed(0)} mL is strongly negative, as single-beat V0 often is in normal hearts; the ESPVR is a linear approximation far from the volume axis.`);
+    add('v0-negative', 'note', m ? `Implied V0 ${r.v0.value.toFixed(0)} mL is strongly negative, as single-beat V0 often is in normal hearts; the ESPVR is a linear approximation far from the volume axis.` : '');
   }
 
   // Consistency between measurements.
   if (inputs.ef !== null && r.efVolumes.value !== null) {
     const gap = Math.abs(inputs.ef - r.efVolumes.value);
     if (gap > THRESHOLDS.efGapPoints) {
-      add('ef-gap', 'caution', `Reported EF ${inputs.ef.toFixed(0)} % and EF from the volumes ${r.efVolumes.value.toFixed(0)} % differ by ${gap.toFixed(0)} points (more than ${THRESHOLDS.efGapPoints}); check the volumes or the report.`);
+      add('ef-gap', 'caution', m ? `Reported EF ${inputs.ef.toFixed(0)} % and EF from the volumes ${r.efVolumes.value.toFixed(0)} % differ by ${gap.toFixed(0)} points (more than ${THRESHOLDS.efGapPoints}); check the volumes or the report.` : '');
     }
   }
   if (r.svDoppler.value !== null && r.svVolumetric.value !== null) {
     const gap = Math.abs(r.svDoppler.value - r.svVolumetric.value) / r.svVolumetric.value;
     if (gap > THRESHOLDS.svGapFraction) {
-      add('sv-gap', 'caution', `Doppler SV ${r.svDoppler.value.toFixed(0)} mL and volumetric SV ${r.svVolumetric.value.toFixed(0)} mL differ by ${(gap * 100).toFixed(0)} % (more than ${THRESHOLDS.svGapFraction * 100} %); Ea and Ees use the Doppler value.`);
+      add('sv-gap', 'caution', m ? `Doppler SV ${r.svDoppler.value.toFixed(0)} mL and volumetric SV ${r.svVolumetric.value.toFixed(0)} mL differ by ${(gap * 100).toFixed(0)} % (more than ${THRESHOLDS.svGapFraction * 100} %); Ea and Ees use the Doppler value.` : '');
     }
   }
   if (inputs.age !== null && inputs.age < THRESHOLDS.amplificationAge && inputs.pesMethod === 'sbp90') {
-    add('amplification', 'note', `Age ${inputs.age.toFixed(0)}: brachial amplification is larger in the young, so 0.9 × brachial SBP may overstate central Pes.`);
+    add('amplification', 'note', m ? `Age ${inputs.age.toFixed(0)}: brachial amplification is larger in the young, so 0.9 × brachial SBP may overstate central Pes.` : '');
   }
   if (r.eaEes.value !== null && r.eaEes.value > COUPLING_CUTOFF) {
-    add('coupling', 'note', `Ea/Ees ${r.eaEes.value.toFixed(2)} is above ${COUPLING_CUTOFF}, the cut-off taken as abnormal coupling in a heart-failure echo study.`);
+    add('coupling', 'note', m ? `Ea/Ees ${r.eaEes.value.toFixed(2)} is above ${COUPLING_CUTOFF}, the cut-off taken as abnormal coupling in a heart-failure echo study.` : '');
   }
 
   // Findings that warrant clinical attention under common thresholds.
   const efLimit = THRESHOLDS.efLowerNormal[inputs.sex ?? 'unknown'];
   if (r.ef.value !== null && r.ef.value < efLimit) {
-    add('ef-low', 'attention', `EF ${r.ef.value.toFixed(0)} % is below the normal range (lower limit about ${efLimit} %${inputs.sex ? ' for ' + (inputs.sex === 'male' ? 'men' : 'women') : ''}, ASE/EACVI 2015).`);
+    add('ef-low', 'attention', m ? `EF ${r.ef.value.toFixed(0)} % is below the normal range (lower limit about ${efLimit} %${inputs.sex ? ' for ' + (inputs.sex === 'male' ? 'men' : 'women') : ''}, ASE/EACVI 2015).` : '');
   }
   if (inputs.sbp > THRESHOLDS.severeSystolic || inputs.dbp > THRESHOLDS.severeDiastolic) {
-    add('bp-severe', 'attention', `Blood pressure ${inputs.sbp.toFixed(0)}/${inputs.dbp.toFixed(0)} mmHg is severely elevated (above ${THRESHOLDS.severeSystolic} systolic or above ${THRESHOLDS.severeDiastolic} diastolic, ACC/AHA 2017).`);
+    add('bp-severe', 'attention', m ? `Blood pressure ${inputs.sbp.toFixed(0)}/${inputs.dbp.toFixed(0)} mmHg is severely elevated (above ${THRESHOLDS.severeSystolic} systolic or above ${THRESHOLDS.severeDiastolic} diastolic, ACC/AHA 2017).` : '');
   }
   if (inputs.hr !== null && inputs.hr < THRESHOLDS.bradycardia) {
-    add('bradycardia', 'attention', `Heart rate ${inputs.hr.toFixed(0)} bpm is below ${THRESHOLDS.bradycardia} bpm (marked bradycardia).`);
+    add('bradycardia', 'attention', m ? `Heart rate ${inputs.hr.toFixed(0)} bpm is below ${THRESHOLDS.bradycardia} bpm (marked bradycardia).` : '');
   }
   if (inputs.hr !== null && inputs.hr > THRESHOLDS.tachycardia) {
-    add('tachycardia', 'attention', `Heart rate ${inputs.hr.toFixed(0)} bpm is above ${THRESHOLDS.tachycardia} bpm (tachycardia).`);
+    add('tachycardia', 'attention', m ? `Heart rate ${inputs.hr.toFixed(0)} bpm is above ${THRESHOLDS.tachycardia} bpm (tachycardia).` : '');
   }
   return flags;
 }

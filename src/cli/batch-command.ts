@@ -1,27 +1,40 @@
 /**
  * `elastimate batch <in.csv> [--out out.csv]`: a cohort spreadsheet in, the
  * same rows with results out (docs/batch.md). Streams: the input is read in
- * 1 MiB chunks, cut at record boundaries (records/batch-row.ts RecordPieces),
- * each piece parsed by d3-dsv, computed row by row and written before the
- * next chunk is read (waiting for the output to drain), so memory stays flat
- * however long the file. A bad row gets its reason in the error column and
- * the run goes on. `--out` goes to a temporary file beside the target (mode
- * 0600), fsynced and renamed over the target only when the whole run
- * succeeded. Progress goes to stderr, on a terminal only.
+ * 64 KiB chunks, cut at record boundaries (records/batch-row.ts RecordPieces),
+ * and each piece (about a thousand rows) is parsed by d3-dsv and computed
+ * row by row into output bytes (BatchSheet), which are written in input order,
+ * waiting for the output to drain; reading waits while too many pieces are
+ * under way, so memory stays flat however long the file. A file of a
+ * megabyte or more is shared with worker threads (batch-worker.ts; one fewer
+ * than the cores, at most three): a piece goes to a worker that has room, or
+ * is computed on the main thread meanwhile. A bad row gets its reason in the
+ * error column and the run goes on. `--out` goes to a temporary file beside
+ * the target (mode 0600), fsynced and renamed over the target only when the
+ * whole run succeeded. Progress goes to stderr, on a terminal only.
  */
-import { closeSync, createReadStream, createWriteStream, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { closeSync, createReadStream, createWriteStream, fstatSync, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import type { Writable } from 'node:stream';
-import { csvParseRows } from 'd3-dsv';
+import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
-import { RecordPieces, batchRow, planBatch, type BatchLayout } from '../records/batch-row.js';
+import { BatchSheet, RecordPieces } from '../records/batch-row.js';
 import { FILE_MODE } from '../records/store.js';
-import { csvText } from '../render/csv.js';
+import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 import { info } from './record-common.js';
 
 /** Read in 64 KiB chunks: a piece of about a thousand rows, whose short-lived objects stay in the young generation. */
 const CHUNK_BYTES = 1 << 16;
+/** Files smaller than this are computed on the main thread alone: starting a worker would cost more than it saves. */
+const PARALLEL_FROM_BYTES = 1 << 20;
+/** At most this many worker threads (and one fewer than the cores). */
+const MAX_WORKERS = 3;
+/** Pieces a worker holds at once: enough that it never waits while the main thread computes a piece. */
+const WORKER_DEPTH = 3;
+/** Pieces computed or under way but not yet written: the bound on memory. */
+const MAX_PENDING = 16;
 
 function openProblem(path: string, err: unknown, field: string): InputError {
   const code = (err as NodeJS.ErrnoException).code;
@@ -29,12 +42,12 @@ function openProblem(path: string, err: unknown, field: string): InputError {
   return new InputError({ field, value: showValue(path), reason, accepted: field === 'out' ? 'a file path in an existing folder you can write to' : 'a readable CSV file with a header row (docs/batch.md)' });
 }
 
-function write(stream: Writable, text: string): Promise<void> {
-  if (text === '') return Promise.resolve();
+function write(stream: Writable, bytes: Uint8Array): Promise<void> {
+  if (bytes.length === 0) return Promise.resolve();
   return new Promise<void>((ok, fail) => {
     const onError = (err: Error) => fail(err);
     stream.once('error', onError);
-    const flushed = stream.write(text, () => undefined);
+    const flushed = stream.write(bytes, () => undefined);
     const done = () => {
       stream.off('error', onError);
       ok();
@@ -65,37 +78,142 @@ export interface BatchCounts {
   failed: number;
 }
 
-/** The whole run against an opened input and output; returns the counts. */
-async function streamRows(input: AsyncIterable<string>, output: Writable, onProgress: (rows: number) => void): Promise<BatchCounts & { layout: BatchLayout | undefined }> {
+/** A piece's output and counts, once computed. */
+interface Computed {
+  bytes: Uint8Array;
+  rows: number;
+  failed: number;
+}
+
+/** A piece in input order: computed on this thread or under way in a worker. */
+interface Slot {
+  result: Computed | undefined;
+  settled: Promise<Computed>;
+}
+
+/** One worker thread and the pieces it holds. */
+class PieceWorker {
+  private readonly worker: Worker;
+  private readonly waiting = new Map<number, { ok: (c: Computed) => void; fail: (e: Error) => void }>();
+  private ready = false;
+  private hasHeader = false;
+  /** Why the worker stopped, if it did: the run fails with it. */
+  failure: Error | undefined;
+
+  constructor() {
+    // Beside this module: dist/cli/batch-worker.js, or dist/bundle/batch-worker.js in the bundle.
+    // No inherited Node options: `--input-type`, `--eval` and the like would stop a worker from a file.
+    this.worker = new Worker(new URL('./batch-worker.js', import.meta.url), { execArgv: [] });
+    this.worker.on('message', (m: PieceReply | 'ready') => {
+      if (m === 'ready') {
+        this.ready = true;
+        return;
+      }
+      const w = this.waiting.get(m.seq);
+      this.waiting.delete(m.seq);
+      w?.ok({ bytes: m.bytes, rows: m.rows, failed: m.failed });
+    });
+    this.worker.on('error', (err) => this.stop(err));
+    this.worker.on('exit', (code) => this.stop(new Error(`batch worker stopped (exit code ${code})`)));
+  }
+
+  private stop(err: Error): void {
+    this.failure ??= err;
+    this.ready = false;
+    for (const w of this.waiting.values()) w.fail(this.failure);
+    this.waiting.clear();
+  }
+
+  /** The input's header, before the first piece. */
+  header(header: string[]): void {
+    const message: HeaderMessage = { header };
+    this.worker.postMessage(message);
+    this.hasHeader = true;
+  }
+
+  /** Started, told the header, healthy and holding fewer pieces than WORKER_DEPTH. */
+  hasRoom(): boolean {
+    return this.ready && this.hasHeader && this.failure === undefined && this.waiting.size < WORKER_DEPTH;
+  }
+
+  run(seq: number, text: string): Promise<Computed> {
+    return new Promise<Computed>((ok, fail) => {
+      this.waiting.set(seq, { ok, fail });
+      const request: PieceRequest = { seq, text };
+      this.worker.postMessage(request);
+    });
+  }
+
+  async close(): Promise<void> {
+    this.worker.removeAllListeners('exit');
+    await this.worker.terminate();
+  }
+}
+
+function workerCount(sizeBytes: number): number {
+  if (sizeBytes < PARALLEL_FROM_BYTES) return 0;
+  return Math.max(0, Math.min(MAX_WORKERS, availableParallelism() - 1));
+}
+
+/**
+ * The whole run against an opened input and output; returns the counts.
+ * Pieces are written in input order whichever thread computed them.
+ */
+async function streamRows(input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
   const pieces = new RecordPieces();
-  let layout: BatchLayout | undefined;
+  const sheet = new BatchSheet(); // this thread's: reads the header, and computes pieces no worker has room for
+  // Started before the first read, so they load while this thread reads the header and the first rows.
+  const pool: PieceWorker[] = Array.from({ length: workers }, () => new PieceWorker());
+  const slots: Slot[] = [];
+  let seq = 0;
   let rows = 0;
   let failed = 0;
+  let started = false;
 
-  const handle = async (text: string) => {
-    if (text === '') return;
-    const records = csvParseRows(text);
-    const out: string[][] = [];
-    for (const cells of records) {
-      if (cells.length === 1 && cells[0] === '') continue; // empty line
-      if (!layout) {
-        layout = planBatch(cells);
-        if (layout.renamed.length) info(`input columns share names with results; those results are in ${layout.renamed.join(', ')}`);
-        out.push(layout.outputHeader);
-        continue;
-      }
-      const row = batchRow(layout, cells);
-      rows++;
-      if (row[row.length - 1] !== '') failed++;
-      out.push(row);
-    }
-    await write(output, csvText(out));
+  const writeFirst = async () => {
+    const slot = slots.shift()!;
+    const done = slot.result ?? (await slot.settled);
+    rows += done.rows;
+    failed += done.failed;
+    await write(output, done.bytes);
     onProgress(rows);
   };
 
-  for await (const chunk of input) await handle(pieces.push(chunk));
-  await handle(pieces.end());
-  return { rows, failed, layout };
+  const submit = async (text: string) => {
+    if (text === '') return;
+    const broken = pool.find((w) => w.failure !== undefined);
+    if (broken) throw broken.failure;
+    const worker = sheet.layout ? pool.find((w) => w.hasRoom()) : undefined;
+    if (worker) {
+      const slot: Slot = { result: undefined, settled: worker.run(seq++, text) };
+      slot.settled.then((c) => (slot.result = c), () => undefined);
+      slots.push(slot);
+    } else {
+      const before = { rows: sheet.rows, failed: sheet.failed };
+      const bytes = sheet.piece(text);
+      const result = { bytes, rows: sheet.rows - before.rows, failed: sheet.failed - before.failed };
+      slots.push({ result, settled: Promise.resolve(result) });
+      seq++;
+      if (sheet.layout && !started) {
+        // The header has been read: say how clashing result columns are named, and tell the workers.
+        started = true;
+        if (sheet.layout.renamed.length) info(`input columns share names with results; those results are in ${sheet.layout.renamed.join(', ')}`);
+        for (const w of pool) w.header(sheet.layout.header);
+      }
+    }
+    while (slots.length > 0 && (slots[0]!.result !== undefined || slots.length >= MAX_PENDING)) await writeFirst();
+  };
+
+  try {
+    for await (const chunk of input) await submit(pieces.push(chunk));
+    await submit(pieces.end());
+    while (slots.length > 0) await writeFirst();
+    const broken = pool.find((w) => w.failure !== undefined);
+    if (broken) throw broken.failure;
+  } finally {
+    await Promise.all(pool.map((w) => w.close()));
+  }
+  return { rows, failed, header: sheet.layout !== undefined };
 }
 
 export async function runBatch(inPath: string, opts: Record<string, unknown>): Promise<void> {
@@ -107,10 +225,12 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   const tempPath = outPath ? join(dirname(outPath), `.${basename(outPath)}.${process.pid}.tmp`) : undefined;
 
   const input = createReadStream(inPath, { highWaterMark: CHUNK_BYTES, encoding: 'utf8' });
-  await new Promise<void>((ok, fail) => {
-    input.once('open', () => ok());
+  const inputFd = await new Promise<number>((ok, fail) => {
+    input.once('open', (fd) => ok(fd));
     input.once('error', (err) => fail(openProblem(inPath, err, 'batch file')));
   });
+  const inputStat = fstatSync(inputFd);
+  const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
 
   let output: Writable = process.stdout;
   if (tempPath) {
@@ -122,12 +242,12 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     output = file;
   }
 
-  let counts: BatchCounts & { layout: BatchLayout | undefined };
+  let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input as AsyncIterable<string>, output, (rows) => {
+    counts = await streamRows(input as AsyncIterable<string>, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
-    if (!counts.layout) {
+    if (!counts.header) {
       throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'empty', accepted: 'a CSV file with a header row and one row per visit (docs/batch.md)' });
     }
     if (tempPath && outPath) {

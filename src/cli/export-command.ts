@@ -4,9 +4,11 @@
  * (render/csv.ts); `--out` is written atomically (temporary file,
  * fsync, rename) and readable by its owner only.
  */
+import { resolve } from 'node:path';
 import { assess } from '../assessment/assess.js';
+import { STANDING_CAVEATS } from '../assessment/caveats.js';
 import { METHODS_VERSION } from '../assessment/result.js';
-import { InputError } from '../errors.js';
+import { InputError, showValue } from '../errors.js';
 import { visitInputs, visitsInOrder } from '../records/series.js';
 import { FILE_MODE, fileLibraries, readSubjectFile } from '../records/store.js';
 import { csvCells, csvText, exportDictionary, exportErrorValues, exportValues, jsonRecord, type CellValue } from '../render/csv.js';
@@ -41,6 +43,10 @@ export function exportRows(paths: readonly string[]): { rows: CellValue[][]; fai
 }
 
 export async function runExport(paths: string[], opts: Record<string, unknown>): Promise<void> {
+  // --out must never replace one of the subject files being exported.
+  if (typeof opts.out === 'string' && paths.some((p) => resolve(p) === resolve(opts.out as string))) {
+    throw new InputError({ field: 'out', value: showValue(opts.out), reason: 'this is one of the subject files being exported and would be overwritten', accepted: 'a different file, e.g. cohort.csv' });
+  }
   const columns = exportDictionary();
   const { rows, failed } = exportRows(paths);
   let text: string;
@@ -52,6 +58,7 @@ export async function runExport(paths: string[], opts: Record<string, unknown>):
       methodsVersion: METHODS_VERSION,
       columns,
       rows: rows.map((r) => jsonRecord(r, columns)),
+      caveats: STANDING_CAVEATS,
     }) + '\n';
   } else {
     text = csvText([columns.map((c) => c.name), ...rows.map((r) => csvCells(r, columns))]);

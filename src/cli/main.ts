@@ -98,7 +98,9 @@ export async function main(argv: string[]): Promise<number> {
   // A reader that goes away early (`elastimate demo | head`) is not an error: stop quietly, as Unix tools do.
   process.stdout.on('error', (err: NodeJS.ErrnoException) => {
     if (err.code === 'EPIPE') process.exit(0);
-    throw err;
+    // Any other write failure (a full disk, a closed file): one line, no stack trace.
+    process.stderr.write(`elastimate: cannot write the output (${err.code ?? err.message})\n`);
+    process.exit(1);
   });
   const program = buildProgram();
   trackInputFile(program);

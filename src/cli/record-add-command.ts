@@ -14,7 +14,7 @@ import { readSubjectFileIfExists, updateSubjectFile } from '../records/store.js'
 import { SubjectIdSchema, newSubjectFile, type SubjectFile, type SubjectInfo, type Visit } from '../records/subject-schema.js';
 import { formatQuantity } from '../render/format.js';
 import { canPrompt, gatherRaw, missingError } from './assess-command.js';
-import { info, parseBirthYear, parseDateOption, warn } from './record-common.js';
+import { info, parseBirthYear, parseDateOption, parseNoteOption, warn } from './record-common.js';
 
 /** What the previous visit offers as defaults: things that rarely change. */
 export function suggestionsFrom(file: SubjectFile | null): Partial<RawInputs> {
@@ -72,7 +72,7 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   const date = parseDateOption(opts.date);
   const id = opts.subject === undefined ? undefined : checkSubjectId(opts.subject);
   const birthYear = parseBirthYear(opts.birthYear);
-  const note = typeof opts.note === 'string' ? opts.note : undefined;
+  const note = parseNoteOption(opts.note);
   const raw = gatherRaw(opts, inputFile);
   const sex = raw.sex;
   delete raw.sex;

@@ -5,8 +5,8 @@
 import { InputError, showValue } from '../errors.js';
 import { changesAlongSeries, compareVisits } from '../records/compare.js';
 import { assessSeries, findVisit, type SeriesEntry } from '../records/series.js';
-import { BIRTH_YEAR_RANGE, isCalendarDate, type SubjectFile } from '../records/subject-schema.js';
-import { comparisonToJson, renderComparison, renderSeries, seriesToJson } from '../render/series.js';
+import { BIRTH_YEAR_RANGE, VisitSchema, isCalendarDate, type SubjectFile } from '../records/subject-schema.js';
+import { comparisonToJson, renderComparison, renderSeries, renderSeriesReferral, seriesToJson } from '../render/series.js';
 import { stringifySafe } from '../render/json.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { canPrompt } from './assess-command.js';
@@ -28,6 +28,18 @@ export function parseDateOption(value: unknown, field = 'date'): string {
   }
   const text = value.trim();
   if (!isCalendarDate(text)) throw new InputError({ field, value: showValue(value), accepted: 'a calendar date written YYYY-MM-DD, e.g. 2024-03-18' });
+  return text;
+}
+
+/** `--note`: free text within the subject-file schema's limit (checked here so nothing fails at write time). */
+export function parseNoteOption(value: unknown): string | undefined {
+  if (value === undefined) return undefined;
+  const text = String(value);
+  const checked = VisitSchema.shape.note.safeParse(text);
+  if (!checked.success) {
+    const shown = text.length > 40 ? `${JSON.stringify(text.slice(0, 40))}… (${text.length.toLocaleString('en-US')} characters)` : showValue(text);
+    throw new InputError({ field: 'note', value: shown, accepted: checked.error.issues[0]?.message ?? 'a shorter note' });
+  }
   return text;
 }
 
@@ -69,7 +81,8 @@ export async function printSeries(file: SubjectFile, opts: { json?: boolean; unc
   } else {
     const style = await terminalStyle();
     const extra = uncertainty && ranges ? uncertainty[1].seriesIntervalLines(entries, ranges.reports, style).join('\n') + '\n' : '';
-    process.stdout.write(renderSeries(file, entries, changes, style) + '\n' + extra);
+    const referral = entries.length > 0 ? (extra ? '\n' : '') + renderSeriesReferral(entries, style) : '';
+    process.stdout.write(renderSeries(file, entries, changes, style) + '\n' + extra + referral);
   }
   return entries;
 }
@@ -94,8 +107,8 @@ export async function printComparison(file: SubjectFile, fromSelector: string, t
   const from = { index: a.index, date: a.date };
   const to = { index: b.index, date: b.date };
   if (opts.json) {
-    process.stdout.write(stringifySafe(comparisonToJson(file, from, to, comparison, toolVersion())) + '\n');
+    process.stdout.write(stringifySafe(comparisonToJson(file, from, to, comparison, toolVersion(), b.assessment.referral)) + '\n');
   } else {
-    process.stdout.write(renderComparison(file, from, to, comparison, await terminalStyle()) + '\n');
+    process.stdout.write(renderComparison(file, from, to, comparison, await terminalStyle(), b.assessment.referral) + '\n');
   }
 }

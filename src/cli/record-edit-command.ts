@@ -10,7 +10,7 @@ import { findVisit, insertVisit, tidyEntered, visitInputs } from '../records/ser
 import { readSubjectFile, updateSubjectFile } from '../records/store.js';
 import type { SubjectFile, SubjectInfo, Visit } from '../records/subject-schema.js';
 import { gatherRaw } from './assess-command.js';
-import { confirmChange, info, parseBirthYear, parseDateOption } from './record-common.js';
+import { confirmChange, info, parseBirthYear, parseDateOption, parseNoteOption } from './record-common.js';
 
 const INPUT_KEYS = Object.keys(RawInputsSchema.shape) as (keyof RawInputs)[];
 
@@ -50,7 +50,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   const birthYear = parseBirthYear(opts.birthYear);
   const unset = ((opts.unset as string[] | undefined) ?? []).map(unsetKey);
   const date = opts.date !== undefined ? parseDateOption(opts.date) : hit.visit.date;
-  const note = typeof opts.note === 'string' ? opts.note : hit.visit.note;
+  const note = opts.note !== undefined ? parseNoteOption(opts.note) : hit.visit.note;
 
   const inputs: Record<string, unknown> = { ...hit.visit.inputs, ...given };
   if (given.errors || hit.visit.inputs.errors) inputs.errors = { ...(hit.visit.inputs.errors ?? {}), ...(given.errors ?? {}) };

@@ -8,15 +8,17 @@
  * Columns are recognised by name, ignoring case and punctuation, so `lvot-vti`,
  * `lvotVti` and `LVOT_VTI` are one column. Everything else passes through.
  */
+import { csvParseRows } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
 import { computeResults } from '../assessment/compute.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
-import { parseCheckedInputs, type RawInputs } from '../assessment/inputs.js';
+import { parseCheckedInputs } from '../assessment/checked-inputs.js';
+import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import type { Results } from '../assessment/compute.js';
 import type { Flag } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
-import { CRLF, csvCellText, csvRowText, flagCell, notComputableCell, resultCells, resultCellsText, resultColumns, trailingColumns } from '../render/csv.js';
+import { CsvBytes, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
 
 type ColumnKind =
   | { kind: 'number'; key: string; multiple: boolean }
@@ -143,19 +145,11 @@ function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
   try {
     const inputs = parseCheckedInputs(rawFromCells(layout, cells));
     const results = computeResults(inputs);
-    return { results, flags: checkVisit(inputs, results) };
+    return { results, flags: checkVisit(inputs, results, false) }; // only the codes are written
   } catch (err) {
     if (err instanceof InputError) return { error: err.message.split('\n').join('; ') };
     throw err;
   }
-}
-
-/** The input cells as read, padded or cut to the header. */
-function inputCells(layout: BatchLayout, cells: readonly string[]): string[] {
-  const width = layout.header.length;
-  const out: string[] = cells.length === width ? cells.slice() : cells.slice(0, width);
-  while (out.length < width) out.push('');
-  return out;
 }
 
 /**
@@ -164,58 +158,94 @@ function inputCells(layout: BatchLayout, cells: readonly string[]): string[] {
  * throws for bad input: the reason goes to the error column.
  */
 export function batchRow(layout: BatchLayout, cells: readonly string[]): string[] {
-  const out = inputCells(layout, cells);
+  const width = layout.header.length;
+  const out: string[] = [];
+  for (let i = 0; i < width; i++) out.push(cells[i] ?? '');
   const row = computeRow(layout, cells);
-  if (row.error !== undefined) return appendError(out, layout, row.error);
+  if (row.error !== undefined) {
+    for (let i = trailingCount(layout) - 2; i > 0; i--) out.push('');
+    out.push(METHODS_VERSION, row.error);
+    return out;
+  }
   for (const cell of resultCells(row.results)) out.push(cell);
   out.push(flagCell(row.flags), notComputableCell(row.results), METHODS_VERSION, '');
   return out;
 }
 
-function appendError(out: string[], layout: BatchLayout, message: string): string[] {
-  const blanks = trailingCount(layout) - 2;
-  for (let i = 0; i < blanks; i++) out.push('');
-  out.push(METHODS_VERSION, message);
-  return out;
+/**
+ * batchRow's cells written as one line of RFC 4180 bytes: the same cells in
+ * the same order, text quoted by d3-dsv where needed, numbers as csvNumber
+ * writes them (a test compares this with csvText of batchRow).
+ */
+function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], row: RowOutcome): void {
+  const width = layout.header.length;
+  for (let i = 0; i < width; i++) {
+    if (i > 0) out.comma();
+    out.text(cells[i] ?? '');
+  }
+  if (row.error !== undefined) {
+    for (let i = trailingCount(layout) - 2; i > 0; i--) out.comma();
+    out.comma();
+    out.text(METHODS_VERSION);
+    out.comma();
+    out.text(row.error);
+  } else {
+    out.resultCells(row.results);
+    out.comma();
+    out.text(flagCell(row.flags));
+    out.comma();
+    out.text(notComputableCell(row.results));
+    out.comma();
+    out.text(METHODS_VERSION);
+    out.comma(); // the error cell, empty
+  }
+  out.endRow();
 }
 
 /**
- * batchRow(layout, cells) as one line of RFC 4180 text with its CRLF, the
- * hot path of `elastimate batch`: the same cells, written straight into the
- * line (text cells quoted by d3-dsv where needed; result cells are numbers,
- * which never need quotes) instead of through an array per row.
+ * One `elastimate batch` run, fed pieces of CSV text that end on a record
+ * boundary (RecordPieces). The first non-empty record is the header
+ * (planBatch), unless a layout is given (a worker thread gets the header
+ * from the main thread); every later non-empty record is one output line.
+ * Records are computed as d3-dsv parses them and written as bytes, so a
+ * piece keeps neither its rows nor their text.
  */
-export function batchLine(layout: BatchLayout, cells: readonly string[]): string {
-  return lineOf(layout, cells, computeRow(layout, cells));
-}
+export class BatchSheet {
+  layout: BatchLayout | undefined;
+  rows = 0;
+  failed = 0;
+  private readonly out = new CsvBytes();
 
-function lineOf(layout: BatchLayout, cells: readonly string[], row: RowOutcome): string {
-  const own = csvRowText(cells.length === layout.header.length ? cells : inputCells(layout, cells));
-  if (row.error !== undefined) return `${own}${','.repeat(trailingCount(layout) - 1)}${csvCellText(METHODS_VERSION)},${csvCellText(row.error)}${CRLF}`;
-  return `${own},${resultCellsText(row.results)},${csvCellText(flagCell(row.flags))},${csvCellText(notComputableCell(row.results))},${csvCellText(METHODS_VERSION)},${CRLF}`;
-}
-
-/** The output of a run of parsed records: CSV text, rows and rows with an error. */
-export interface BatchPiece {
-  text: string;
-  rows: number;
-  failed: number;
-}
-
-/** batchLine for each record from `from` on, skipping empty lines (a record of one empty cell). */
-export function batchRecords(layout: BatchLayout, records: readonly (readonly string[])[], from = 0): BatchPiece {
-  let text = '';
-  let rows = 0;
-  let failed = 0;
-  for (let i = from; i < records.length; i++) {
-    const cells = records[i]!;
-    if (cells.length === 1 && cells[0] === '') continue;
-    const row = computeRow(layout, cells);
-    rows++;
-    if (row.error !== undefined) failed++;
-    text += lineOf(layout, cells, row);
+  constructor(layout?: BatchLayout) {
+    this.layout = layout;
   }
-  return { text, rows, failed };
+
+  /** The output (UTF-8 CSV, CRLF line ends) of the complete records in `text`; the header line comes first, once. */
+  piece(text: string): Uint8Array {
+    csvParseRows(text, (cells) => {
+      this.record(cells);
+      return null; // keep nothing
+    });
+    return this.out.take();
+  }
+
+  private record(cells: string[]): void {
+    if (cells.length === 1 && cells[0] === '') return; // an empty line
+    const layout = this.layout;
+    if (!layout) {
+      this.layout = planBatch(cells);
+      this.layout.outputHeader.forEach((name, i) => {
+        if (i > 0) this.out.comma();
+        this.out.text(name);
+      });
+      this.out.endRow();
+      return;
+    }
+    const row = computeRow(layout, cells);
+    this.rows++;
+    if (row.error !== undefined) this.failed++;
+    writeRow(this.out, layout, cells, row);
+  }
 }
 
 /**
@@ -235,12 +265,16 @@ export class RecordPieces {
       this.started = true;
       if (all.charCodeAt(0) === 0xfeff) all = all.slice(1); // byte-order mark
     }
-    let inQuotes = false;
     let end = -1;
-    for (let i = 0; i < all.length; i++) {
-      const c = all.charCodeAt(i);
-      if (c === 34) inQuotes = !inQuotes;
-      else if (c === 10 && !inQuotes) end = i;
+    if (all.indexOf('"') === -1) {
+      end = all.lastIndexOf('\n'); // no quotes: every line break ends a record
+    } else {
+      let inQuotes = false;
+      for (let i = 0; i < all.length; i++) {
+        const c = all.charCodeAt(i);
+        if (c === 34) inQuotes = !inQuotes;
+        else if (c === 10 && !inQuotes) end = i;
+      }
     }
     if (end === -1) {
       this.pending = all;

@@ -137,7 +137,7 @@ function parseSubjectBytes(path: string, bytes: Buffer, versions: SchemaVersions
       const keys = issue.code === 'unrecognized_keys' ? ` (unknown key${issue.keys.length > 1 ? 's' : ''} ${issue.keys.join(', ')})` : '';
       return {
         field: `${path}: ${where}`,
-        value: showValue(valueAt(migrated, issue.path)),
+        value: issue.code === 'unrecognized_keys' ? showValue(issue.keys.join(', ')) : shownAt(migrated, issue.path),
         reason: `fails the subject-file schema${keys}; left untouched`,
         accepted: `${issue.message} (${DOC_HINT})`,
       };
@@ -151,13 +151,16 @@ function formatPath(path: readonly PropertyKey[]): string {
   return path.map((p, i) => (typeof p === 'number' ? `[${p}]` : i === 0 ? String(p) : `.${String(p)}`)).join('');
 }
 
-function valueAt(doc: unknown, path: readonly PropertyKey[]): unknown {
+/** The value at `path` for an error message: '' (shown as "missing") only when nothing is there. */
+function shownAt(doc: unknown, path: readonly PropertyKey[]): string {
   let v: unknown = doc;
   for (const p of path) {
-    if (typeof v !== 'object' || v === null) return undefined;
+    if (typeof v !== 'object' || v === null) return '';
     v = (v as Record<PropertyKey, unknown>)[p];
   }
-  return typeof v === 'object' && v !== null ? undefined : v;
+  if (Array.isArray(v)) return 'a list';
+  if (typeof v === 'object' && v !== null) return 'an object';
+  return showValue(v);
 }
 
 /**

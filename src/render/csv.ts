@@ -30,16 +30,6 @@ export function csvText(rows: readonly (readonly string[])[]): string {
   return text;
 }
 
-/** One row's cells as RFC 4180 text without the line end (d3-dsv quotes where needed). */
-export function csvRowText(cells: readonly string[]): string {
-  return csvFormatRow(cells);
-}
-
-/** One cell as RFC 4180 text (d3-dsv: quoted when it holds a comma, a double quote or a line break). */
-export function csvCellText(cell: string): string {
-  return csvFormatValue(cell);
-}
-
 /** Units of the result keys (docs/json-output.md); a test checks them against computed results. */
 export const RESULT_UNITS: Partial<Record<ResultKey, string>> = {
   pes: 'mmHg', map: 'mmHg', pp: 'mmHg', sv: 'mL', svVolumetric: 'mL', svDoppler: 'mL', ef: '%', efVolumes: '%',
@@ -61,47 +51,175 @@ function decimalsOf(unit: string): number {
   return d;
 }
 
-/** Decimal parts (".5", ".0427") by decimals and scaled value, written once and reused (up to 5 decimals). */
-const FRACTIONS: (string | undefined)[][] = [];
-function fractionText(decimals: number, part: number): string {
-  const scale = SCALE[decimals]!;
-  const known = FRACTIONS[decimals] ?? (scale <= 1e5 ? (FRACTIONS[decimals] = new Array<string | undefined>(scale)) : undefined);
-  let text = known?.[part];
-  if (text === undefined) {
-    const digits = String(part + scale).slice(1); // zero-padded to `decimals` digits
-    let end = digits.length;
-    while (digits.charCodeAt(end - 1) === 48) end--; // trailing zeros dropped
-    text = `.${digits.slice(0, end)}`;
-    if (known) known[part] = text;
-  }
-  return text;
-}
+/** The documented unit and decimals of each result key, in RESULT_KEYS order, so the hot path skips the lookup. */
+const RESULT_UNIT_LIST: readonly string[] = RESULT_KEYS.map((key) => RESULT_UNITS[key] ?? '');
+const RESULT_DECIMALS: readonly number[] = RESULT_UNIT_LIST.map(decimalsOf);
 
 /**
  * A number for a CSV cell: '' when missing or not finite, else rounded to two
  * decimals more than the report shows for its unit (render/format.ts
  * decimalsFor), without trailing zeros: 1.5429, 108, -27.79. Hot path of
- * `batch`: the value is scaled to a whole number, split into its whole and
- * decimal parts, and the decimal part's text looked up, which is several
- * times faster than toFixed. The text is only digits, a leading minus and a
- * decimal point, so it never needs quotes in CSV.
+ * `batch`: the value is scaled to a whole number, written as digits and the
+ * decimal point put back, which is several times faster than toFixed.
  */
 export function csvNumber(value: number | null | undefined, unit: string): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '';
   const decimals = decimalsOf(unit);
-  const scale = SCALE[decimals]!;
-  const scaled = Math.round(Math.abs(value) * scale);
+  const scaled = Math.round(Math.abs(value) * SCALE[decimals]!);
   if (!Number.isSafeInteger(scaled)) return formatNumber(value, 0);
   if (scaled === 0) return '0';
-  let whole = Math.floor(scaled / scale);
-  let part = scaled - whole * scale;
-  if (part < 0) {
-    // The division rounded up (values near 2⁵³ only): take one back.
-    whole -= 1;
-    part += scale;
+  let digits = String(scaled);
+  let d = decimals;
+  while (d > 0 && digits.charCodeAt(digits.length - 1) === 48) {
+    digits = digits.slice(0, -1);
+    d--;
   }
-  const text = part === 0 ? String(whole) : String(whole) + fractionText(decimals, part);
-  return value < 0 ? `-${text}` : text;
+  if (d > 0) digits = digits.length > d ? `${digits.slice(0, digits.length - d)}.${digits.slice(digits.length - d)}` : `0.${'0'.repeat(d - digits.length)}${digits}`;
+  return value < 0 ? `-${digits}` : digits;
+}
+
+/**
+ * CSV written straight into UTF-8 bytes, for `batch`, whose output is a
+ * hundred thousand rows of forty-odd cells: no text per cell, no joined
+ * lines, and the bytes go to the file (or from a worker thread to the
+ * writer) as they are. Text cells are quoted by d3-dsv (csvFormatValue) as
+ * csvText does; numbers are written digit by digit exactly as csvNumber
+ * writes them (a test compares the two).
+ */
+export class CsvBytes {
+  private buf: Buffer;
+  private pos = 0;
+
+  constructor(private readonly capacity = 1 << 18) {
+    this.buf = Buffer.allocUnsafeSlow(capacity);
+  }
+
+  private room(bytes: number): void {
+    if (this.pos + bytes <= this.buf.length) return;
+    const next = Buffer.allocUnsafeSlow(Math.max(this.buf.length * 2, this.pos + bytes));
+    this.buf.copy(next, 0, 0, this.pos);
+    this.buf = next;
+  }
+
+  /** A text cell, quoted by d3-dsv where it holds a comma, a double quote or a line break. */
+  text(cell: string): void {
+    const t = csvFormatValue(cell);
+    const n = t.length;
+    this.room(n * 3);
+    const buf = this.buf;
+    const start = this.pos;
+    let p = start;
+    for (let i = 0; i < n; i++) {
+      const c = t.charCodeAt(i);
+      if (c >= 0x80) {
+        // Not ASCII: let Node encode the whole cell as UTF-8.
+        this.pos = start + buf.write(t, start, 'utf8');
+        return;
+      }
+      buf[p++] = c;
+    }
+    this.pos = p;
+  }
+
+  /** The cell separator. */
+  comma(): void {
+    this.room(1);
+    this.buf[this.pos++] = 44;
+  }
+
+  /** The RFC 4180 line end, CRLF. */
+  endRow(): void {
+    this.room(2);
+    this.buf[this.pos++] = 13;
+    this.buf[this.pos++] = 10;
+  }
+
+  /** csvNumber(value, unit), written as bytes. */
+  number(value: number | null | undefined, unit: string): void {
+    this.numberWith(value, decimalsOf(unit));
+  }
+
+  private numberWith(value: number | null | undefined, decimals: number): void {
+    if (value === null || value === undefined || !Number.isFinite(value)) return;
+    const scale = SCALE[decimals]!;
+    const scaled = Math.round(Math.abs(value) * scale);
+    if (!Number.isSafeInteger(scaled)) {
+      this.text(formatNumber(value, 0));
+      return;
+    }
+    this.room(24);
+    if (scaled === 0) {
+      this.buf[this.pos++] = 48;
+      return;
+    }
+    if (value < 0) this.buf[this.pos++] = 45;
+    if (scaled < 2147483648) {
+      // The usual case: small integers, so the digits come from int32 arithmetic.
+      const whole = (scaled / scale) | 0;
+      this.digits(whole, 0);
+      let part = (scaled - whole * scale) | 0;
+      if (part === 0) return;
+      let d = decimals;
+      while (part % 10 === 0) {
+        part = (part / 10) | 0;
+        d--;
+      }
+      this.buf[this.pos++] = 46;
+      this.digits(part, d);
+      return;
+    }
+    // Split into whole and decimal parts without rounding error: the remainder is exact.
+    let part = scaled % scale;
+    let whole = (scaled - part) / scale;
+    let d = decimals;
+    while (d > 0 && part % 10 === 0) {
+      part /= 10;
+      d--;
+    }
+    const wholeDigits: number[] = [];
+    do {
+      const digit = whole % 10;
+      wholeDigits.push(digit);
+      whole = (whole - digit) / 10;
+    } while (whole > 0);
+    for (let i = wholeDigits.length - 1; i >= 0; i--) this.buf[this.pos++] = 48 + wholeDigits[i]!;
+    if (part === 0) return;
+    this.buf[this.pos++] = 46;
+    this.digits(part, d);
+  }
+
+  /** The digits of a non-negative int32, left-padded with zeros to `width`. */
+  private digits(x: number, width: number): void {
+    const n = x < 10 ? 1 : x < 100 ? 2 : x < 1000 ? 3 : x < 1e4 ? 4 : x < 1e5 ? 5 : x < 1e6 ? 6 : x < 1e7 ? 7 : x < 1e8 ? 8 : x < 1e9 ? 9 : 10;
+    const buf = this.buf;
+    let p = this.pos;
+    for (let i = n; i < width; i++) buf[p++] = 48;
+    p += n;
+    this.pos = p;
+    do {
+      const next = (x / 10) | 0;
+      buf[--p] = 48 + (x - next * 10);
+      x = next;
+    } while (x > 0);
+  }
+
+  /** resultCells(r), each preceded by a comma. */
+  resultCells(r: Results): void {
+    for (let i = 0; i < RESULT_KEYS.length; i++) {
+      const q = r[RESULT_KEYS[i]!];
+      this.room(25);
+      this.buf[this.pos++] = 44;
+      this.numberWith(q.value, q.unit === RESULT_UNIT_LIST[i] ? RESULT_DECIMALS[i]! : decimalsOf(q.unit));
+    }
+  }
+
+  /** The bytes written so far (a view of a buffer of its own, never Node's shared pool, so it may be transferred); the writer starts afresh. */
+  take(): Uint8Array {
+    const bytes = this.buf.subarray(0, this.pos);
+    this.buf = Buffer.allocUnsafeSlow(this.capacity);
+    this.pos = 0;
+    return bytes;
+  }
 }
 
 /** The results whose absence is worth a reason in the `notComputable` column (the rest need an input not given). */
@@ -180,16 +298,6 @@ function inputValues(i: VisitInputs): CellValue[] {
 
 export function resultCells(r: Results): string[] {
   return RESULT_KEYS.map((key) => csvNumber(r[key].value, r[key].unit));
-}
-
-/** resultCells(r) as CSV text, the cells joined by commas (numbers never need quotes: csvNumber). */
-export function resultCellsText(r: Results): string {
-  let text = '';
-  for (let i = 0; i < RESULT_KEYS.length; i++) {
-    const q = r[RESULT_KEYS[i]!];
-    text += i === 0 ? csvNumber(q.value, q.unit) : `,${csvNumber(q.value, q.unit)}`;
-  }
-  return text;
 }
 
 export function flagCell(flags: readonly Flag[]): string {

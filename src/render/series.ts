@@ -132,6 +132,18 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
   return out.join('\n');
 }
 
+/** The paste-ready referral note under its heading, as the assess report prints it. */
+function referralLines(heading: string, referral: string, s: Style): string[] {
+  return ['', s.heading(heading), ...wrap(referral, 96).map((l) => '  ' + l)];
+}
+
+/** The referral note of the latest visit of a series, printed last under the series table (and its ranges). */
+export function renderSeriesReferral(entries: readonly SeriesEntry[], style: Style = plainStyle): string {
+  const latest = entries[entries.length - 1];
+  if (!latest) return '';
+  return referralLines(`Referral note for visit ${latest.index} (${latest.date}), the latest (paste-ready)`, latest.assessment.referral, style).slice(1).join('\n') + '\n';
+}
+
 function ratioText(row: ChangeRow): string {
   return `±${formatNumber(row.lsc.logLimit, 3)} in ln (+${formatNumber(row.lsc.percentUp, 0)} % / −${formatNumber(row.lsc.percentDown, 0)} %)`;
 }
@@ -206,7 +218,7 @@ export function comparisonSummary(c: Comparison): string[] {
 }
 
 /** The explained change between two visits. */
-export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, style: Style = plainStyle): string {
+export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, style: Style = plainStyle, referral?: string): string {
   const s = style;
   const out: string[] = [];
   out.push(s.strong(`elastimate comparison: subject ${file.subject.id}, visit ${from.index} (${from.date}) → visit ${to.index} (${to.date})`));
@@ -237,12 +249,13 @@ export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef
   for (const line of comparisonSummary(c)) out.push(...wrap(line, 96).map((l, i) => `  ${i === 0 ? '•' : ' '} ${l}`));
   for (const caution of c.cautions) out.push(...wrap(caution, 96).map((l, i) => `  ${i === 0 ? s.caution('!') : ' '} ${l}`));
   for (const caveat of STANDING_CAVEATS) out.push(...wrap(caveat, 96).map((l, i) => `  ${i === 0 ? s.dim('•') : ' '} ${l}`));
+  if (referral !== undefined) out.push(...referralLines(`Referral note for visit ${to.index} (${to.date}) (paste-ready)`, referral, s));
   out.push('');
   return out.join('\n');
 }
 
-/** The JSON of one comparison (`record compare --json`). */
-export function comparisonToJson(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, toolVersion: string): Record<string, unknown> {
+/** The JSON of one comparison (`record compare --json`); `referral` is the note for the later visit of the two. */
+export function comparisonToJson(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, toolVersion: string, referral?: string): Record<string, unknown> {
   return {
     format: COMPARISON_FORMAT,
     formatVersion: SERIES_FORMAT_VERSION,
@@ -255,6 +268,7 @@ export function comparisonToJson(file: SubjectFile, from: VisitRef, to: VisitRef
     cautions: c.cautions,
     summary: comparisonSummary(c),
     caveats: STANDING_CAVEATS,
+    ...(referral !== undefined ? { referral } : {}),
   };
 }
 
@@ -267,6 +281,7 @@ function visitJson(e: SeriesEntry, change: Comparison | null): Record<string, un
     inputs: { ...a.inputs },
     results: a.results,
     flags: a.flags,
+    referral: a.referral,
   };
   if (e.visit.note !== undefined) v.note = e.visit.note;
   v.changeFromPrevious = change ? { rows: change.rows, cautions: change.cautions, summary: comparisonSummary(change) } : null;

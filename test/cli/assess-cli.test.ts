@@ -2,7 +2,8 @@
  * The built CLI spawned as a user would run it: `node bin/elastimate.js assess …`.
  * Needs dist/ (npm install builds it; after changing src/ run `npm run build`).
  */
-import { chmodSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { chmodSync, closeSync, existsSync, mkdtempSync, openSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -302,5 +303,17 @@ describe('version, help, unknown options', () => {
     const run = await runCli(['asses']);
     expect(run.code).toBe(2);
     expect(run.stderr).not.toMatch(STACK_FRAME);
+  });
+
+  // Regression: a failing standard output (here a full device) used to end in an uncaught exception and a stack dump.
+  it.runIf(existsSync('/dev/full'))('an output that cannot be written (stdout on /dev/full): one line, exit 1, no stack trace', () => {
+    const full = openSync('/dev/full', 'w');
+    try {
+      const run = spawnSync(process.execPath, [join(ROOT, 'bin', 'elastimate.js'), 'assess', '--no-input', ...WORKED], { cwd: ROOT, env: plainEnv(), stdio: ['ignore', full, 'pipe'], encoding: 'utf8', timeout: 15_000 });
+      expect(run.status).toBe(1);
+      expect(run.stderr).toBe('elastimate: cannot write the output (ENOSPC)\n');
+    } finally {
+      closeSync(full);
+    }
   });
 });

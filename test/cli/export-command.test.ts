@@ -113,12 +113,25 @@ describe('export', () => {
     const json = JSON.parse(ok(await runCli(['export', CASE, '--json'])).stdout) as { format: string; methodsVersion: string; columns: { name: string; unit: string; description: string }[]; rows: Record<string, unknown>[] };
     expect(json.format).toBe('elastimate-export');
     expect(json.methodsVersion).toBe(METHODS_VERSION);
+    // The standing cautions travel with the numbers (regression: export --json had none).
+    expect((json as unknown as { caveats: string[] }).caveats.join(' ')).toMatch(/research use only.*not a diagnosis.*local protocols/i);
     const unit = Object.fromEntries(json.columns.map((c) => [c.name, c.unit]));
     expect(unit).toMatchObject({ ea: 'mmHg/mL', ees: 'mmHg/mL', pes: 'mmHg', co: 'L/min', tNd: '', sbp: 'mmHg', pep: 'ms', date: 'YYYY-MM-DD' });
     expect(json.rows).toHaveLength(4);
     expect(json.rows[0]).toMatchObject({ subject: 'CO-203', visit: 1, date: '2023-09-04', aorticStenosis: false, error: null });
     expect(typeof json.rows[0]!.ea).toBe('number');
     expect(Number(rows[0]!.ea)).toBeCloseTo(json.rows[0]!.ea as number, 4);
+  });
+
+  it('refuses an --out that names one of the subject files being exported, leaving it byte for byte (regression: it was overwritten with CSV)', async () => {
+    const copy = join(dir, 'copy.subject.json');
+    writeFileSync(copy, readFileSync(CASE));
+    const before = readFileSync(copy);
+    const run = await runCli(['export', CASE, copy, '--out', copy]);
+    expect(run.code).toBe(2);
+    expect(run.stderr).toMatch(/out: got ".*copy\.subject\.json"; this is one of the subject files being exported/);
+    expect(run.stderr).not.toMatch(STACK_FRAME);
+    expect(readFileSync(copy).equals(before)).toBe(true);
   });
 
   it('refuses an unwritable --out with exit 2', async () => {

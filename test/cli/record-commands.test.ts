@@ -80,6 +80,17 @@ describe('record add / show / compare', () => {
     expect(existsSync(fresh)).toBe(false);
   });
 
+  it('refuses a note longer than the subject file allows as bad input, not an internal error (regression), on add and edit', async () => {
+    const fresh = join(dir, 'long-note.json');
+    const long = 'x'.repeat(10_001);
+    refused(await runCli(['record', 'add', fresh, '--subject', 'HT-017', '--date', '2024-01-10', '--note', long, ...VISIT_1]), /^elastimate: note: got "x+"… \(10,001 characters\); accepted: a note of at most 10,000 characters\n$/);
+    expect(existsSync(fresh)).toBe(false);
+    ok(await runCli(['record', 'add', fresh, '--subject', 'HT-017', '--date', '2024-01-10', '--note', 'x'.repeat(10_000), ...VISIT_1]));
+    const before = readFileSync(fresh);
+    refused(await runCli(['record', 'edit', fresh, '1', '--note', long, '--yes']), /note: got "x+"… \(10,001 characters\); accepted: a note of at most 10,000 characters/);
+    expect(readFileSync(fresh).equals(before)).toBe(true);
+  });
+
   it('show --json gives { subject, visits: [ { date, inputs, results } ] } with results as assess --json gives them', async () => {
     const run = ok(await runCli(['record', 'show', file(), '--json']));
     const json = JSON.parse(run.stdout) as SeriesJson;
@@ -107,6 +118,19 @@ describe('record add / show / compare', () => {
     expect(run.stdout).toMatch(/2\s+2024-04-10\s+75\s+140\/90\s+56\s+70\s+126 \+17%\s+1\.80 \+17%\s+1\.68 \+10%/);
     expect(run.stdout).toMatch(/research use only/i);
     expect(run.stdout).toMatch(/licensed clinical practice/);
+  });
+
+  it('show and compare carry the referral note of the latest (later) visit, as text and JSON (regression: they had none)', async () => {
+    const latest = JSON.parse(ok(await runCli(['assess', '--json', '--no-input', ...VISIT_2.map((a) => (a === '140' ? '18.665kPa' : a)), '--sex', 'female', '--age', '56'])).stdout) as { referral: string };
+    expect(latest.referral).toMatch(/^Research echocardiography .* not a diagnosis/);
+    const show = ok(await runCli(['record', 'show', file()]));
+    expect(show.stdout).toMatch(/Referral note for visit 2 \(2024-04-10\), the latest \(paste-ready\)\n  Research echocardiography and cuff blood pressure \(140\/90 mmHg/);
+    const series = JSON.parse(ok(await runCli(['record', 'show', file(), '--json'])).stdout) as { visits: { referral: string }[] };
+    expect(series.visits[1]!.referral).toBe(latest.referral);
+    const compare = ok(await runCli(['record', 'compare', file(), '1', '2']));
+    expect(compare.stdout).toMatch(/Referral note for visit 2 \(2024-04-10\) \(paste-ready\)\n  Research echocardiography/);
+    const json = JSON.parse(ok(await runCli(['record', 'compare', file(), '1', '2', '--json'])).stdout) as { referral: string };
+    expect(json.referral).toBe(latest.referral);
   });
 
   it('compare explains the change by number or by date, as text and JSON', async () => {

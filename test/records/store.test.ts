@@ -101,6 +101,11 @@ describe('subject file store', () => {
     const unknown = join(dir, 'unknown.json');
     writeFileSync(unknown, JSON.stringify({ format: 'elastimate-subject', schemaVersion: 1, subject: { id: 'ST-004', name: 'someone' }, visits: [] }));
     expectRefused(unknown, /unknown key name/);
+    // The message names what is there, never "missing" for a key that is present (regression).
+    expectRefused(unknown, /subject: got "name"; fails the subject-file schema \(unknown key name\)/);
+    const wrongShape = join(dir, 'wrong-shape.json');
+    writeFileSync(wrongShape, JSON.stringify({ format: 'elastimate-subject', schemaVersion: 1, subject: { id: 'ST-006' }, visits: { date: '2024-01-01' } }));
+    expectRefused(wrongShape, /visits: got an object; fails the subject-file schema/);
     const other = join(dir, 'other.json');
     writeFileSync(other, JSON.stringify({ format: 'elastimate-visit', sbp: 120 }));
     expectRefused(other, /format: got "elastimate-visit"/);

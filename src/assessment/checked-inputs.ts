@@ -1,0 +1,152 @@
+/**
+ * Raw inputs of a known shape → the parsed inputs of one visit, in internal
+ * units: units converted, ranges and the relations between fields checked,
+ * every problem reported together, each naming its field. inputs.ts checks
+ * the shape first (parseInputs); a batch row, built cell by cell, comes here
+ * directly. Kept apart from the zod schema so that a batch worker thread
+ * loads no schema library.
+ */
+import { InputError, showValue, type InputProblem } from '../errors.js';
+import { toInternalUnit } from '../units/quantity.js';
+import { NUMERIC_FIELDS, describeRange, type NumericField, type NumericKey, type PesMethod } from './fields.js';
+import type { RawInputs, VisitInputs } from './inputs.js';
+
+export function isAbsent(v: unknown): boolean {
+  return v === undefined || v === null || v === '' || (Array.isArray(v) && v.length === 0);
+}
+
+/** Problems with a repeated field and value listed once. */
+export function dedupe(problems: InputProblem[]): InputProblem[] {
+  const seen = new Set<string>();
+  return problems.filter((p) => {
+    const k = p.field + '|' + p.value;
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}
+
+const REQUIRED_FIELDS: readonly NumericField[] = NUMERIC_FIELDS.filter((f) => f.required);
+const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i])) as Record<NumericKey, number>;
+
+/**
+ * Parse raw inputs whose shape is already known to be right (checkRawShape,
+ * or a batch row built cell by cell) into internal units. Throws one
+ * InputError listing every problem.
+ */
+export function parseCheckedInputs(raw: RawInputs): VisitInputs {
+  // Hot path of a batch (once per row): one pass over the registry, no per-field arrays or
+  // closures for single values; the problems and their order are those of the registry.
+  const problems: InputProblem[] = [];
+  for (const f of REQUIRED_FIELDS) {
+    if (isAbsent(raw[f.key])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
+  }
+
+  // Per field (registry order): the mean of its readings in internal units, null when absent or refused.
+  const means: (number | null)[] = new Array<number | null>(NUMERIC_FIELDS.length);
+  let sbpReadings: number[] | undefined;
+  let dbpReadings: number[] | undefined;
+  for (let i = 0; i < NUMERIC_FIELDS.length; i++) {
+    const f = NUMERIC_FIELDS[i]!;
+    const given = raw[f.key];
+    means[i] = null;
+    if (isAbsent(given)) continue;
+    const list = Array.isArray(given) ? given : undefined;
+    const count = list ? list.length : 1;
+    let sum = 0;
+    let accepted = 0;
+    const parsed: number[] | undefined = f.multiple ? [] : undefined;
+    for (let j = 0; j < count; j++) {
+      const item: unknown = list ? list[j] : given;
+      const v = readValue(f, item, problems);
+      if (v === null) continue;
+      sum += v;
+      accepted++;
+      parsed?.push(v);
+    }
+    if (accepted !== count) continue;
+    means[i] = sum / count;
+    if (f.key === 'sbp') sbpReadings = parsed;
+    else if (f.key === 'dbp') dbpReadings = parsed;
+  }
+
+  const one = (i: number): number | null => means[i] ?? null;
+  const sbp = one(FIELD_INDEX.sbp);
+  const dbp = one(FIELD_INDEX.dbp);
+  const edv = one(FIELD_INDEX.edv);
+  const esv = one(FIELD_INDEX.esv);
+  if (sbp !== null && dbp !== null && dbp >= sbp) {
+    problems.push({ field: 'dbp', value: showValue(round(dbp)), reason: `not below SBP ${round(sbp)} mmHg`, accepted: 'DBP lower than SBP' });
+  }
+  if (edv !== null && esv !== null && esv >= edv) {
+    problems.push({ field: 'esv', value: showValue(round(esv)), reason: `not below EDV ${round(edv)} mL`, accepted: 'ESV lower than EDV' });
+  }
+  const lvotDiameter = one(FIELD_INDEX.lvotDiameter);
+  const lvotVti = one(FIELD_INDEX.lvotVti);
+  if ((lvotDiameter === null) !== (lvotVti === null) && problems.length === 0) {
+    const field = lvotDiameter === null ? 'lvot-diameter' : 'lvot-vti';
+    problems.push({ field, value: '', reason: 'Doppler stroke volume needs both LVOT diameter and VTI', accepted: 'both lvot-diameter and lvot-vti, or neither' });
+  }
+  const pesMeasured = one(FIELD_INDEX.pesMeasured);
+  const pesMethod: PesMethod = raw.pesMethod ?? (pesMeasured !== null ? 'measured' : 'sbp90');
+  if (pesMethod === 'measured' && pesMeasured === null && !isAbsent(raw.pesMethod)) {
+    problems.push({ field: 'pes-measured', value: '', reason: 'pes-method "measured" needs the measured value', accepted: 'a measured end-systolic pressure, 40–260 mmHg' });
+  }
+  if (problems.length > 0) throw new InputError(dedupe(problems));
+
+  return {
+    sbpReadings: sbpReadings ?? [],
+    dbpReadings: dbpReadings ?? [],
+    sbp: sbp as number,
+    dbp: dbp as number,
+    hr: one(FIELD_INDEX.hr),
+    edv: edv as number,
+    esv: esv as number,
+    ef: one(FIELD_INDEX.ef),
+    sv: one(FIELD_INDEX.sv),
+    lvotDiameter,
+    lvotVti,
+    pep: one(FIELD_INDEX.pep) as number,
+    et: one(FIELD_INDEX.et) as number,
+    height: one(FIELD_INDEX.height),
+    weight: one(FIELD_INDEX.weight),
+    age: one(FIELD_INDEX.age),
+    pesMeasured,
+    edp: one(FIELD_INDEX.edp),
+    eOverEPrime: one(FIELD_INDEX.eOverEPrime),
+    lvids: one(FIELD_INDEX.lvids),
+    pwts: one(FIELD_INDEX.pwts),
+    rhythm: raw.rhythm ?? 'sinus',
+    aorticStenosis: raw.aorticStenosis ?? false,
+    aorticRegurgitation: raw.aorticRegurgitation ?? false,
+    mitralRegurgitation: raw.mitralRegurgitation ?? false,
+    outflowObstruction: raw.outflowObstruction ?? false,
+    pesMethod,
+    mapMethod: raw.mapMethod ?? 'third',
+    bsaMethod: raw.bsaMethod ?? 'mosteller',
+    sex: raw.sex ?? null,
+    errors: raw.errors ?? {},
+  };
+}
+
+/** One reading in internal units, or null after recording why it was refused. */
+function readValue(f: NumericField, item: unknown, problems: InputProblem[]): number | null {
+  try {
+    const v = toInternalUnit(f.flag, item, f.kind);
+    if (v < f.min || v > f.max) {
+      problems.push({ field: f.flag, value: showValue(item), reason: 'outside the accepted range', accepted: `${f.label}, ${describeRange(f)}` });
+      return null;
+    }
+    return v;
+  } catch (err) {
+    if (err instanceof InputError) {
+      problems.push(...err.problems.map((p) => ({ ...p, accepted: `${p.accepted}; range ${describeRange(f)}` })));
+      return null;
+    }
+    throw err;
+  }
+}
+
+function round(x: number): number {
+  return Math.round(x * 10) / 10;
+}
