@@ -4,10 +4,14 @@
 // rarely needed packages stay external and lazily imported (mathjs's own single-file bundle,
 // inquirer, chalk). bin/elastimate.js uses the bundle only when it is newer than dist/cli.
 import { build } from 'esbuild';
+import { rmSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+
+// Start clean: chunk names carry content hashes, so old ones would pile up.
+rmSync(join(root, 'dist', 'bundle'), { recursive: true, force: true });
 
 await build({
   // batch-worker.js is the worker thread of `batch`: a second entry point, so it lands beside

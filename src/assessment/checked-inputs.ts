@@ -11,6 +11,14 @@ import { toInternalUnit } from '../units/quantity.js';
 import { NUMERIC_FIELDS, describeRange, type NumericField, type NumericKey, type PesMethod } from './fields.js';
 import type { RawInputs, VisitInputs } from './inputs.js';
 
+/** At most this many readings of one input (several readings are averaged). */
+export const MAX_READINGS = 20;
+
+/** What a numeric input accepts, as the shape check (inputs.ts checkRawShape) says it. */
+export function acceptedShape(f: NumericField): string {
+  return `${f.multiple ? 'a number or a list of numbers' : 'a number'} (optionally text with a unit), ${describeRange(f)}`;
+}
+
 export function isAbsent(v: unknown): boolean {
   return v === undefined || v === null || v === '' || (Array.isArray(v) && v.length === 0);
 }
@@ -26,7 +34,8 @@ export function dedupe(problems: InputProblem[]): InputProblem[] {
   });
 }
 
-const REQUIRED_FIELDS: readonly NumericField[] = NUMERIC_FIELDS.filter((f) => f.required);
+/** Registry positions of the required fields. */
+const REQUIRED_AT: readonly number[] = NUMERIC_FIELDS.flatMap((f, i) => (f.required ? [i] : []));
 const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i])) as Record<NumericKey, number>;
 
 /**
@@ -35,11 +44,24 @@ const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i]))
  * InputError listing every problem.
  */
 export function parseCheckedInputs(raw: RawInputs): VisitInputs {
-  // Hot path of a batch (once per row): one pass over the registry, no per-field arrays or
-  // closures for single values; the problems and their order are those of the registry.
+  const given = new Array<unknown>(NUMERIC_FIELDS.length);
+  for (let i = 0; i < NUMERIC_FIELDS.length; i++) given[i] = raw[NUMERIC_FIELDS[i]!.key];
+  return parseFieldValues(given, raw);
+}
+
+/**
+ * parseCheckedInputs with the numeric inputs given by registry position
+ * (NUMERIC_FIELDS order; undefined when absent) rather than by key, as a
+ * batch row reads them from its columns; every other input comes from
+ * `raw`, whose numeric keys are not read. The hot path of a batch (once per
+ * row): one pass over the registry, no per-field arrays or closures for
+ * single values; the problems and their order are those of the registry.
+ */
+export function parseFieldValues(given: readonly unknown[], raw: RawInputs): VisitInputs {
   const problems: InputProblem[] = [];
-  for (const f of REQUIRED_FIELDS) {
-    if (isAbsent(raw[f.key])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
+  for (const i of REQUIRED_AT) {
+    const f = NUMERIC_FIELDS[i]!;
+    if (isAbsent(given[i])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
   }
 
   // Per field (registry order): the mean of its readings in internal units, null when absent or refused.
@@ -48,16 +70,16 @@ export function parseCheckedInputs(raw: RawInputs): VisitInputs {
   let dbpReadings: number[] | undefined;
   for (let i = 0; i < NUMERIC_FIELDS.length; i++) {
     const f = NUMERIC_FIELDS[i]!;
-    const given = raw[f.key];
+    const value = given[i];
     means[i] = null;
-    if (isAbsent(given)) continue;
-    const list = Array.isArray(given) ? given : undefined;
+    if (isAbsent(value)) continue;
+    const list = Array.isArray(value) ? (value as unknown[]) : undefined;
     const count = list ? list.length : 1;
     let sum = 0;
     let accepted = 0;
     const parsed: number[] | undefined = f.multiple ? [] : undefined;
     for (let j = 0; j < count; j++) {
-      const item: unknown = list ? list[j] : given;
+      const item: unknown = list ? list[j] : value;
       const v = readValue(f, item, problems);
       if (v === null) continue;
       sum += v;

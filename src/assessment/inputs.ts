@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { InputError, showValue, type InputProblem } from '../errors.js';
-import { dedupe, isAbsent, parseCheckedInputs } from './checked-inputs.js';
+import { MAX_READINGS, acceptedShape, dedupe, isAbsent, parseCheckedInputs } from './checked-inputs.js';
 import {
   BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS,
   describeRange, type BsaMethod, type MapMethod, type NumericKey, type PesMethod, type Rhythm, type Sex,
@@ -15,7 +15,7 @@ import {
 export { parseCheckedInputs };
 
 const rawValue = z.union([z.number(), z.string()]);
-const rawReadings = z.union([rawValue, z.array(rawValue).min(1).max(20)]);
+const rawReadings = z.union([rawValue, z.array(rawValue).min(1).max(MAX_READINGS)]);
 
 const numericShape = Object.fromEntries(
   NUMERIC_FIELDS.map((f) => [f.key, (f.multiple ? rawReadings : rawValue).optional()]),
@@ -116,7 +116,7 @@ export function checkRawShape(raw: unknown, where = 'inputs'): RawInputs {
     const value = (raw as Record<string, unknown>)[key];
     const numeric = NUMERIC_FIELDS.find((f) => f.key === key);
     const accepted = numeric
-      ? `${numeric.multiple ? 'a number or a list of numbers' : 'a number'} (optionally text with a unit), ${describeRange(numeric)}`
+      ? acceptedShape(numeric)
       : key === 'errors'
         ? 'an object of input keys to an error (number in the input unit, or "N%")'
         : (ENUM_ACCEPTED[key] ?? issue.message);

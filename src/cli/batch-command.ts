@@ -20,10 +20,18 @@ import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
+import { checkOutputPath } from './output-files.js';
 import { BatchSheet, RecordPieces } from '../records/batch-row.js';
-import { FILE_MODE } from '../records/store.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
-import { info } from './record-common.js';
+
+// Kept here rather than imported from records/store.ts and cli/record-common.ts, whose module
+// graphs (the subject-file schema and its zod) would add some 50 ms to the start of every batch.
+/** Owner read and write only, as every file the tool writes (records/store.ts FILE_MODE). */
+const FILE_MODE = 0o600;
+/** A line for the user on stderr, as record-common.ts `info` writes it. */
+function info(message: string): void {
+  process.stderr.write(`elastimate: ${message}\n`);
+}
 
 /** Read in 64 KiB chunks: a piece of about a thousand rows, whose short-lived objects stay in the young generation. */
 const CHUNK_BYTES = 1 << 16;
@@ -217,10 +225,7 @@ async function streamRows(input: AsyncIterable<string>, output: Writable, worker
 }
 
 export async function runBatch(inPath: string, opts: Record<string, unknown>): Promise<void> {
-  const outPath = typeof opts.out === 'string' ? resolve(opts.out) : undefined;
-  if (outPath && outPath === resolve(inPath)) {
-    throw new InputError({ field: 'out', value: showValue(opts.out), reason: 'same file as the input', accepted: 'a different file' });
-  }
+  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, { option: 'out', extensions: [], protect: [inPath] }) : undefined;
   const showProgress = Boolean(process.stderr.isTTY);
   const tempPath = outPath ? join(dirname(outPath), `.${basename(outPath)}.${process.pid}.tmp`) : undefined;
 
@@ -230,6 +235,10 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     input.once('error', (err) => fail(openProblem(inPath, err, 'batch file')));
   });
   const inputStat = fstatSync(inputFd);
+  if (inputStat.isDirectory()) {
+    input.destroy();
+    throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'is a folder', accepted: 'a readable CSV file with a header row (docs/batch.md)' });
+  }
   const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
 
   let output: Writable = process.stdout;

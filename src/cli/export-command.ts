@@ -9,6 +9,7 @@ import { assess } from '../assessment/assess.js';
 import { STANDING_CAVEATS } from '../assessment/caveats.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
+import { checkOutputPath } from './output-files.js';
 import { visitInputs, visitsInOrder } from '../records/series.js';
 import { FILE_MODE, fileLibraries, readSubjectFile } from '../records/store.js';
 import { csvCells, csvText, exportDictionary, exportErrorValues, exportValues, jsonRecord, type CellValue } from '../render/csv.js';
@@ -44,6 +45,7 @@ export function exportRows(paths: readonly string[]): { rows: CellValue[][]; fai
 
 export async function runExport(paths: string[], opts: Record<string, unknown>): Promise<void> {
   // --out must never replace one of the subject files being exported.
+  if (opts.out !== undefined) checkOutputPath(opts.out, { option: 'out', extensions: [] });
   if (typeof opts.out === 'string' && paths.some((p) => resolve(p) === resolve(opts.out as string))) {
     throw new InputError({ field: 'out', value: showValue(opts.out), reason: 'this is one of the subject files being exported and would be overwritten', accepted: 'a different file, e.g. cohort.csv' });
   }

@@ -12,7 +12,7 @@ import { InputError, showValue } from '../errors.js';
 export interface OutputPathRule {
   /** The option as the user typed it, e.g. `--svg` or `--out`. */
   option: string;
-  /** Accepted file-name endings, lower case with the dot, e.g. ['.svg']. */
+  /** Accepted file-name endings, lower case with the dot, e.g. ['.svg']; empty accepts any name. */
   extensions: readonly string[];
   /** Paths that must not be overwritten (e.g. the subject file being read). */
   protect?: readonly string[];
@@ -20,10 +20,10 @@ export interface OutputPathRule {
 
 /** Check an output path; returns it resolved. Throws InputError naming the option. */
 export function checkOutputPath(raw: unknown, rule: OutputPathRule): string {
-  const accepted = `a file path ending in ${rule.extensions.join(' or ')}, in an existing folder`;
+  const accepted = rule.extensions.length ? `a file path ending in ${rule.extensions.join(' or ')}, in an existing folder` : 'a file path in an existing folder';
   if (typeof raw !== 'string' || raw.trim() === '') throw new InputError({ field: rule.option, value: showValue(raw), accepted });
   const path = resolve(raw);
-  if (!rule.extensions.includes(extname(path).toLowerCase())) {
+  if (rule.extensions.length && !rule.extensions.includes(extname(path).toLowerCase())) {
     throw new InputError({ field: rule.option, value: showValue(raw), reason: 'wrong file type', accepted });
   }
   if (rule.protect?.some((p) => resolve(p) === path)) {

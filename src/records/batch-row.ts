@@ -12,7 +12,7 @@ import { csvParseRows } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
 import { computeResults } from '../assessment/compute.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
-import { parseCheckedInputs } from '../assessment/checked-inputs.js';
+import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import type { Results } from '../assessment/compute.js';
@@ -21,7 +21,7 @@ import { InputError, showValue } from '../errors.js';
 import { CsvBytes, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
 
 type ColumnKind =
-  | { kind: 'number'; key: string; multiple: boolean }
+  | { kind: 'number'; key: string; multiple: boolean; field: number }
   | { kind: 'choice'; key: string; allowed: readonly string[]; flag: string }
   | { kind: 'boolean'; key: string; flag: string };
 
@@ -30,7 +30,7 @@ function normalise(name: string): string {
 }
 
 const RECOGNISED: ReadonlyMap<string, ColumnKind> = new Map<string, ColumnKind>([
-  ...NUMERIC_FIELDS.map((f): [string, ColumnKind] => [normalise(f.key), { kind: 'number', key: f.key, multiple: f.multiple === true }]),
+  ...NUMERIC_FIELDS.map((f, field): [string, ColumnKind] => [normalise(f.key), { kind: 'number', key: f.key, multiple: f.multiple === true, field }]),
   ...VALVE_FLAGS.map((v): [string, ColumnKind] => [normalise(v.key), { kind: 'boolean', key: v.key, flag: v.flag }]),
   ['rhythm', { kind: 'choice', key: 'rhythm', allowed: RHYTHMS, flag: 'rhythm' }],
   ['pesmethod', { kind: 'choice', key: 'pesMethod', allowed: PES_METHODS, flag: 'pes-method' }],
@@ -96,15 +96,27 @@ export function planBatch(header: readonly string[]): BatchLayout {
   };
 }
 
-/** Raw inputs from one row's cells; empty cells are absent. */
-export function rawFromCells(layout: BatchLayout, cells: readonly string[]): RawInputs {
+/**
+ * Read one row's cells; empty cells are absent. The numeric inputs go into
+ * `numbers` by registry position (NUMERIC_FIELDS order: the text as entered,
+ * or a list of readings), every other input into the raw inputs returned.
+ * With `checkShape`, a cell of no readings (";") or too many is refused as
+ * parseInputs's shape check refuses it, since parseFieldValues skips that
+ * check; every other cell gives a raw value of the right shape.
+ */
+function readCells(layout: BatchLayout, cells: readonly string[], numbers: unknown[], checkShape: boolean): RawInputs {
   const raw: Record<string, unknown> = {};
+  let badLists: number[] | undefined;
   for (const { index, column } of layout.recognised) {
     const cell = (cells[index] ?? '').trim();
     if (cell === '') continue;
     switch (column.kind) {
       case 'number':
-        raw[column.key] = column.multiple && cell.includes(';') ? cell.split(';').map((s) => s.trim()).filter((s) => s !== '') : cell;
+        if (column.multiple && cell.includes(';')) {
+          const readings = cell.split(';').map((s) => s.trim()).filter((s) => s !== '');
+          if (checkShape && (readings.length === 0 || readings.length > MAX_READINGS)) (badLists ??= []).push(column.field);
+          numbers[column.field] = readings;
+        } else numbers[column.field] = cell;
         break;
       case 'choice': {
         const value = cell.toLowerCase();
@@ -121,6 +133,20 @@ export function rawFromCells(layout: BatchLayout, cells: readonly string[]): Raw
       }
     }
   }
+  if (badLists) {
+    // Refused as checkRawShape refuses them, in registry order.
+    throw new InputError(badLists.sort((a, b) => a - b).map((i) => ({ field: NUMERIC_FIELDS[i]!.flag, value: showValue(numbers[i]), accepted: acceptedShape(NUMERIC_FIELDS[i]!) })));
+  }
+  return raw as RawInputs;
+}
+
+/** Raw inputs from one row's cells; empty cells are absent. */
+export function rawFromCells(layout: BatchLayout, cells: readonly string[]): RawInputs {
+  const numbers: unknown[] = [];
+  const raw = readCells(layout, cells, numbers, false) as Record<string, unknown>;
+  NUMERIC_FIELDS.forEach((f, i) => {
+    if (numbers[i] !== undefined) raw[f.key] = numbers[i];
+  });
   return raw as RawInputs;
 }
 
@@ -134,8 +160,9 @@ type RowOutcome = { results: Results; flags: Flag[]; error?: undefined } | { err
 
 /**
  * The computation of one row, exactly as `assess` does it: the raw inputs
- * from the cells, parseCheckedInputs, computeResults and checkVisit. Never
- * throws for bad input: the reason (one line) comes back instead.
+ * from the cells, parseInputs (its shape check done cell by cell, the rest by
+ * parseFieldValues), computeResults and checkVisit. Never throws for bad
+ * input: the reason (one line) comes back instead.
  */
 function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
   const width = layout.header.length;
@@ -143,7 +170,9 @@ function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
     return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}` };
   }
   try {
-    const inputs = parseCheckedInputs(rawFromCells(layout, cells));
+    // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position.
+    const numbers = new Array<unknown>(NUMERIC_FIELDS.length);
+    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true));
     const results = computeResults(inputs);
     return { results, flags: checkVisit(inputs, results, false) }; // only the codes are written
   } catch (err) {
@@ -178,11 +207,7 @@ export function batchRow(layout: BatchLayout, cells: readonly string[]): string[
  * writes them (a test compares this with csvText of batchRow).
  */
 function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], row: RowOutcome): void {
-  const width = layout.header.length;
-  for (let i = 0; i < width; i++) {
-    if (i > 0) out.comma();
-    out.text(cells[i] ?? '');
-  }
+  out.cells(cells, layout.header.length);
   if (row.error !== undefined) {
     for (let i = trailingCount(layout) - 2; i > 0; i--) out.comma();
     out.comma();
@@ -234,10 +259,7 @@ export class BatchSheet {
     const layout = this.layout;
     if (!layout) {
       this.layout = planBatch(cells);
-      this.layout.outputHeader.forEach((name, i) => {
-        if (i > 0) this.out.comma();
-        this.out.text(name);
-      });
+      this.out.cells(this.layout.outputHeader, this.layout.outputHeader.length);
       this.out.endRow();
       return;
     }

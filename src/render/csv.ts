@@ -14,7 +14,7 @@ import type { Assessment } from '../assessment/assess.js';
 import { RESULT_KEYS, type ResultKey, type Results } from '../assessment/compute.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
-import type { Flag } from '../assessment/result.js';
+import type { Flag, Quantity } from '../assessment/result.js';
 import { decimalsFor, formatNumber } from './format.js';
 
 /** RFC 4180 line end. */
@@ -58,13 +58,17 @@ const RESULT_DECIMALS: readonly number[] = RESULT_UNIT_LIST.map(decimalsOf);
 /**
  * A number for a CSV cell: '' when missing or not finite, else rounded to two
  * decimals more than the report shows for its unit (render/format.ts
- * decimalsFor), without trailing zeros: 1.5429, 108, -27.79. Hot path of
- * `batch`: the value is scaled to a whole number, written as digits and the
- * decimal point put back, which is several times faster than toFixed.
+ * decimalsFor), without trailing zeros: 1.5429, 108, -27.79. The value is
+ * scaled to a whole number, written as digits and the decimal point put
+ * back, which is several times faster than toFixed. (`batch` writes the same
+ * digits as bytes: CsvBytes.)
  */
 export function csvNumber(value: number | null | undefined, unit: string): string {
+  return numberText(value, decimalsOf(unit));
+}
+
+function numberText(value: number | null | undefined, decimals: number): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '';
-  const decimals = decimalsOf(unit);
   const scaled = Math.round(Math.abs(value) * SCALE[decimals]!);
   if (!Number.isSafeInteger(scaled)) return formatNumber(value, 0);
   if (scaled === 0) return '0';
@@ -76,6 +80,20 @@ export function csvNumber(value: number | null | undefined, unit: string): strin
   }
   if (d > 0) digits = digits.length > d ? `${digits.slice(0, digits.length - d)}.${digits.slice(digits.length - d)}` : `0.${'0'.repeat(d - digits.length)}${digits}`;
   return value < 0 ? `-${digits}` : digits;
+}
+
+/** The digits of a non-negative int32 at `p`, left-padded with zeros to `width`; returns the position after them. */
+function writeDigits(buf: Buffer, p: number, x: number, width: number): number {
+  const n = x < 10 ? 1 : x < 100 ? 2 : x < 1000 ? 3 : x < 1e4 ? 4 : x < 1e5 ? 5 : x < 1e6 ? 6 : x < 1e7 ? 7 : x < 1e8 ? 8 : x < 1e9 ? 9 : 10;
+  for (let i = n; i < width; i++) buf[p++] = 48;
+  const end = p + n;
+  p = end;
+  do {
+    const next = (x / 10) | 0;
+    buf[--p] = 48 + (x - next * 10);
+    x = next;
+  } while (x > 0);
+  return end;
 }
 
 /**
@@ -101,24 +119,40 @@ export class CsvBytes {
     this.buf = next;
   }
 
-  /** A text cell, quoted by d3-dsv where it holds a comma, a double quote or a line break. */
+  /**
+   * A text cell. Plain ASCII without a comma, a double quote or a line break
+   * (nearly every cell) is copied as it is, which is what d3-dsv's
+   * csvFormatValue returns for it; any other cell is quoted by csvFormatValue
+   * where needed and encoded as UTF-8 by Node.
+   */
   text(cell: string): void {
-    const t = csvFormatValue(cell);
-    const n = t.length;
-    this.room(n * 3);
+    const n = cell.length;
+    this.room(n);
     const buf = this.buf;
     const start = this.pos;
     let p = start;
     for (let i = 0; i < n; i++) {
-      const c = t.charCodeAt(i);
-      if (c >= 0x80) {
-        // Not ASCII: let Node encode the whole cell as UTF-8.
-        this.pos = start + buf.write(t, start, 'utf8');
+      const c = cell.charCodeAt(i);
+      if (c >= 0x80 || c === 34 || c === 44 || c === 10 || c === 13) {
+        const t = csvFormatValue(cell);
+        this.room(t.length * 3);
+        this.pos = start + this.buf.write(t, start, 'utf8');
         return;
       }
       buf[p++] = c;
     }
     this.pos = p;
+  }
+
+  /** The first `width` cells (missing ones empty), as text cells separated by commas. */
+  cells(cells: readonly string[], width: number): void {
+    for (let i = 0; i < width; i++) {
+      if (i > 0) {
+        this.room(1);
+        this.buf[this.pos++] = 44;
+      }
+      this.text(cells[i] ?? '');
+    }
   }
 
   /** The cell separator. */
@@ -140,77 +174,57 @@ export class CsvBytes {
   }
 
   private numberWith(value: number | null | undefined, decimals: number): void {
-    if (value === null || value === undefined || !Number.isFinite(value)) return;
+    if (value === null || value === undefined) return;
     const scale = SCALE[decimals]!;
     const scaled = Math.round(Math.abs(value) * scale);
-    if (!Number.isSafeInteger(scaled)) {
-      this.text(formatNumber(value, 0));
+    if (!(scaled < 2147483648)) {
+      // Large or not finite (rare): as csvNumber writes it.
+      const text = numberText(value, decimals);
+      if (text !== '') this.text(text);
       return;
     }
+    // The usual case: the digits come from int32 arithmetic.
     this.room(24);
-    if (scaled === 0) {
-      this.buf[this.pos++] = 48;
-      return;
-    }
-    if (value < 0) this.buf[this.pos++] = 45;
-    if (scaled < 2147483648) {
-      // The usual case: small integers, so the digits come from int32 arithmetic.
-      const whole = (scaled / scale) | 0;
-      this.digits(whole, 0);
-      let part = (scaled - whole * scale) | 0;
-      if (part === 0) return;
-      let d = decimals;
-      while (part % 10 === 0) {
-        part = (part / 10) | 0;
-        d--;
-      }
-      this.buf[this.pos++] = 46;
-      this.digits(part, d);
-      return;
-    }
-    // Split into whole and decimal parts without rounding error: the remainder is exact.
-    let part = scaled % scale;
-    let whole = (scaled - part) / scale;
-    let d = decimals;
-    while (d > 0 && part % 10 === 0) {
-      part /= 10;
-      d--;
-    }
-    const wholeDigits: number[] = [];
-    do {
-      const digit = whole % 10;
-      wholeDigits.push(digit);
-      whole = (whole - digit) / 10;
-    } while (whole > 0);
-    for (let i = wholeDigits.length - 1; i >= 0; i--) this.buf[this.pos++] = 48 + wholeDigits[i]!;
-    if (part === 0) return;
-    this.buf[this.pos++] = 46;
-    this.digits(part, d);
-  }
-
-  /** The digits of a non-negative int32, left-padded with zeros to `width`. */
-  private digits(x: number, width: number): void {
-    const n = x < 10 ? 1 : x < 100 ? 2 : x < 1000 ? 3 : x < 1e4 ? 4 : x < 1e5 ? 5 : x < 1e6 ? 6 : x < 1e7 ? 7 : x < 1e8 ? 8 : x < 1e9 ? 9 : 10;
     const buf = this.buf;
     let p = this.pos;
-    for (let i = n; i < width; i++) buf[p++] = 48;
-    p += n;
+    if (scaled === 0) {
+      buf[p++] = 48;
+    } else {
+      if (value < 0) buf[p++] = 45;
+      const whole = (scaled / scale) | 0;
+      p = writeDigits(buf, p, whole, 0);
+      let part = (scaled - whole * scale) | 0;
+      if (part !== 0) {
+        let d = decimals;
+        while (part % 10 === 0) {
+          part = (part / 10) | 0;
+          d--;
+        }
+        buf[p++] = 46;
+        p = writeDigits(buf, p, part, d);
+      }
+    }
     this.pos = p;
-    do {
-      const next = (x / 10) | 0;
-      buf[--p] = 48 + (x - next * 10);
-      x = next;
-    } while (x > 0);
   }
 
   /** resultCells(r), each preceded by a comma. */
   resultCells(r: Results): void {
-    for (let i = 0; i < RESULT_KEYS.length; i++) {
-      const q = r[RESULT_KEYS[i]!];
-      this.room(25);
-      this.buf[this.pos++] = 44;
-      this.numberWith(q.value, q.unit === RESULT_UNIT_LIST[i] ? RESULT_DECIMALS[i]! : decimalsOf(q.unit));
+    // computeResults writes its keys in RESULT_KEYS order, and walking an object's own keys in
+    // their order is much faster than looking each up by a name that changes with every cell:
+    // the names are checked against RESULT_KEYS on the way, and looked up by name from the
+    // first one that differs (which computeResults never gives).
+    let i = 0;
+    for (const key in r) {
+      if (key !== RESULT_KEYS[i]) break;
+      this.resultCell(r[key as ResultKey], i++);
     }
+    for (; i < RESULT_KEYS.length; i++) this.resultCell(r[RESULT_KEYS[i]!], i);
+  }
+
+  private resultCell(q: Quantity, i: number): void {
+    this.room(1);
+    this.buf[this.pos++] = 44;
+    this.numberWith(q.value, q.unit === RESULT_UNIT_LIST[i] ? RESULT_DECIMALS[i]! : decimalsOf(q.unit));
   }
 
   /** The bytes written so far (a view of a buffer of its own, never Node's shared pool, so it may be transferred); the writer starts afresh. */
@@ -301,7 +315,10 @@ export function resultCells(r: Results): string[] {
 }
 
 export function flagCell(flags: readonly Flag[]): string {
-  return flags.map((f) => f.code).join(';');
+  // flags.map((f) => f.code).join(';'), without the array: this runs for every row of a batch.
+  let text = '';
+  for (let i = 0; i < flags.length; i++) text = i === 0 ? flags[i]!.code : `${text};${flags[i]!.code}`;
+  return text;
 }
 
 export function notComputableCell(r: Results): string {

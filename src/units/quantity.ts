@@ -27,7 +27,57 @@ export const KINDS: Record<QuantityKind, KindInfo> = {
   ratio: { unit: '', examples: 'a plain number' },
 };
 
-const BARE_NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+/** Powers of ten, each exact as a double. */
+const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15];
+
+/**
+ * The value of a bare decimal number, NaN for any other text. Bare numbers are
+ * what the pattern /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/ matches ("120",
+ * "-0.5", ".5", "5.", "1e3"); the value is Number(text). This runs for every
+ * number cell of a batch, so the text is read once, character by character:
+ * with at most 15 digits and no exponent, the digits as a whole number m and
+ * the k digits after the point give m / 10^k, one correctly rounded division
+ * of two exact doubles, which is Number(text) exactly (Clinger's fast path);
+ * anything longer goes to Number itself.
+ */
+export function bareNumber(text: string): number {
+  const n = text.length;
+  let i = 0;
+  let c = n > 0 ? text.charCodeAt(0) : 0;
+  const negative = c === 45;
+  if (c === 43 || c === 45) c = ++i < n ? text.charCodeAt(i) : 0; // + or -
+  let digits = 0;
+  let decimals = 0;
+  let m = 0;
+  while (c >= 48 && c <= 57) {
+    m = m * 10 + (c - 48);
+    digits++;
+    c = ++i < n ? text.charCodeAt(i) : 0;
+  }
+  if (c === 46) {
+    // a decimal point, then digits
+    c = ++i < n ? text.charCodeAt(i) : 0;
+    while (c >= 48 && c <= 57) {
+      m = m * 10 + (c - 48);
+      digits++;
+      decimals++;
+      c = ++i < n ? text.charCodeAt(i) : 0;
+    }
+  }
+  if (digits === 0) return NaN;
+  if (c === 101 || c === 69) {
+    // e or E, an optional sign, then at least one digit
+    c = ++i < n ? text.charCodeAt(i) : 0;
+    if (c === 43 || c === 45) c = ++i < n ? text.charCodeAt(i) : 0;
+    const start = i;
+    while (c >= 48 && c <= 57) c = ++i < n ? text.charCodeAt(i) : 0;
+    return i === start || i !== n ? NaN : Number(text);
+  }
+  if (i !== n) return NaN;
+  if (digits > 15) return Number(text);
+  const value = decimals === 0 ? m : m / POW10[decimals]!;
+  return negative ? -value : value;
+}
 
 interface MathUnit {
   equalBase(other: MathUnit): boolean;
@@ -56,8 +106,8 @@ export function toInternalUnit(field: string, raw: unknown, kind: QuantityKind):
   if (typeof raw === 'number') {
     if (Number.isFinite(raw)) return raw;
   } else if (typeof raw === 'string') {
-    const text = raw.trim();
-    if (BARE_NUMBER.test(text)) return Number(text);
+    const value = bareNumber(raw.trim());
+    if (value === value) return value; // not NaN: a bare number
   }
   return withUnit(field, raw, kind);
 }
@@ -72,7 +122,8 @@ function withUnit(field: string, raw: unknown, kind: QuantityKind): number {
 
   if (kind === 'percent') {
     const m = /^(.*?)\s*%$/.exec(text);
-    if (m && m[1] !== undefined && BARE_NUMBER.test(m[1].trim())) return Number(m[1].trim());
+    const value = m && m[1] !== undefined ? bareNumber(m[1].trim()) : NaN;
+    if (value === value) return value;
     throw new InputError({ field, value: showValue(raw), accepted });
   }
   if (kind === 'ratio') throw new InputError({ field, value: showValue(raw), accepted });

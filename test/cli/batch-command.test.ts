@@ -111,7 +111,7 @@ describe('batch', () => {
   it('refuses, with exit 2, a missing file, an empty one, a header without measurement columns, and the input as output', async () => {
     const refusals: [string[], RegExp][] = [
       [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file or folder not found/],
-      [['batch', input, '--out', input], /out: got .*; same file as the input/],
+      [['batch', input, '--out', input], /out: got .*; this is an input file and would be overwritten/],
     ];
     const empty = join(dir, 'empty.csv');
     writeFileSync(empty, '');
@@ -136,5 +136,26 @@ describe('batch', () => {
     const out = parse(r.stdout, { columns: true }) as Record<string, string>[];
     expect(out.length).toBeGreaterThanOrEqual(5);
     expect(out.filter((x) => x.error !== '')).toHaveLength(1);
+  });
+});
+
+describe('batch: folders and empty paths are input errors, not crashes', () => {
+  it('a folder as the input, a folder or an empty path as --out: exit 2 naming the field', async () => {
+    const { spawnSync } = await import('node:child_process');
+    const { mkdtempSync, readdirSync } = await import('node:fs');
+    const { tmpdir } = await import('node:os');
+    const folder = mkdtempSync(join(tmpdir(), 'elastimate-batch-folder-'));
+    const run = (...args: string[]) => spawnSync(process.execPath, ['bin/elastimate.js', 'batch', ...args], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
+    const asInput = run(folder);
+    expect(asInput.status).toBe(2);
+    expect(asInput.stderr).toMatch(/batch file: got ".*"; is a folder; accepted: a readable CSV file/);
+    const asOut = run('cases/hypertension-cohort.csv', '--out', folder);
+    expect(asOut.status).toBe(2);
+    expect(asOut.stderr).toMatch(/out: got ".*"; exists and is not a regular file/);
+    const empty = run('cases/hypertension-cohort.csv', '--out', '');
+    expect(empty.status).toBe(2);
+    expect(empty.stderr).toMatch(/out: got ""; accepted: a file path in an existing folder/);
+    for (const r of [asInput, asOut, empty]) expect(r.stderr).not.toMatch(/internal error|\n\s+at /);
+    expect(readdirSync(folder)).toEqual([]);
   });
 });
