@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_KEYS } from '../../src/assessment/compute.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
-import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, ok } from './fixtures/run-cli.js';
 
 let dir: string;
 beforeAll(() => {
@@ -20,13 +20,6 @@ beforeAll(() => {
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function ok(run: CliRun): CliRun {
-  expect(run.timedOut).toBe(false);
-  expect(run.stderr).not.toMatch(STACK_FRAME);
-  expect(run.code, run.stderr).toBe(0);
-  expect(run.stdout).not.toMatch(FORBIDDEN_WORDS);
-  return run;
-}
 
 const HEADER = ['participant', 'visit date', 'sbp', 'dbp', 'hr', 'edv', 'esv', 'ef', 'pep', 'et', 'comment'];
 const ROWS = [

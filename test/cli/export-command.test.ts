@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_KEYS } from '../../src/assessment/compute.js';
 import { decimalsFor } from '../../src/render/format.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
-import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, ok } from './fixtures/run-cli.js';
 
 const CASE = join(ROOT, 'cases', 'cardio-oncology.subject.json');
 const AWKWARD_NOTE = 'dose held, then "resumed"\r\nsecond line, with commas, and a "quote"\nthird line';
@@ -36,13 +36,6 @@ beforeAll(() => {
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function ok(run: CliRun): CliRun {
-  expect(run.timedOut).toBe(false);
-  expect(run.stderr).not.toMatch(STACK_FRAME);
-  expect(run.code, run.stderr).toBe(0);
-  expect(run.stdout).not.toMatch(FORBIDDEN_WORDS);
-  return run;
-}
 
 type Row = Record<string, string>;
 

@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
-import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, ok } from './fixtures/run-cli.js';
 
 const VISIT_1 = ['--sbp', '120', '--dbp', '80', '--hr', '60', '--edv', '120', '--esv', '50', '--ef', '60', '--pep', '90', '--et', '290'];
 const VISIT_2 = ['--sbp', '140', '--dbp', '90', '--hr', '75', '--edv', '125', '--esv', '55', '--ef', '56', '--pep', '90', '--et', '290'];
@@ -18,13 +18,6 @@ beforeAll(() => {
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function ok(run: CliRun): CliRun {
-  expect(run.timedOut).toBe(false);
-  expect(run.stderr).not.toMatch(STACK_FRAME);
-  expect(run.code, run.stderr).toBe(0);
-  expect(run.stdout).not.toMatch(FORBIDDEN_WORDS);
-  return run;
-}
 function refused(run: CliRun, pattern: RegExp): void {
   expect(run.timedOut).toBe(false);
   expect(run.code).toBe(2);
