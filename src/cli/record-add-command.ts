@@ -23,8 +23,17 @@ export function suggestionsFrom(file: SubjectFile | null): Partial<RawInputs> {
   const last = ordered[ordered.length - 1]!.visit;
   const merged = visitRawInputs(file, last);
   const out: Partial<RawInputs> = {};
-  if (merged.height !== undefined) out.height = merged.height;
-  if (merged.weight !== undefined) out.weight = merged.weight;
+  // Body size from the latest visit that recorded it (a visit may have skipped it); rhythm and valve
+  // findings describe the latest state, so they come from the last visit only.
+  for (const key of ['height', 'weight'] as const) {
+    for (let i = ordered.length - 1; i >= 0; i--) {
+      const value = visitRawInputs(file, ordered[i]!.visit)[key];
+      if (value !== undefined) {
+        out[key] = value;
+        break;
+      }
+    }
+  }
   if (merged.rhythm !== undefined) out.rhythm = merged.rhythm;
   if (merged.sex !== undefined) out.sex = merged.sex;
   for (const v of VALVE_FLAGS) if (merged[v.key] !== undefined) out[v.key] = merged[v.key];

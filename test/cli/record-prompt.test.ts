@@ -61,6 +61,13 @@ describe('suggestions for the next visit', () => {
     expect(suggestionsFrom(previous)).toEqual({ height: 181, weight: 92, rhythm: 'atrial-fibrillation', mitralRegurgitation: true, sex: 'male' });
     expect(suggestionsFrom(null)).toEqual({});
   });
+  it('takes height and weight from the latest visit that recorded them when the last one skipped them', () => {
+    const later: SubjectFile = {
+      ...previous,
+      visits: [...previous.visits, { date: '2024-04-15', inputs: { sbp: 110, dbp: 70, edv: 200, esv: 140, pep: 120, et: 250, rhythm: 'sinus' } }],
+    };
+    expect(suggestionsFrom(later)).toEqual({ height: 181, weight: 92, rhythm: 'sinus', sex: 'male' });
+  });
 });
 
 describe.skipIf(unavailable !== null)(`record add at a terminal${unavailable ? ` (skipped: ${unavailable})` : ''}`, () => {
