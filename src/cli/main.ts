@@ -26,9 +26,8 @@ export function buildProgram(): Command {
     .name('elastimate')
     .description('Ventricular–arterial coupling from echocardiography and cuff pressure: Pes, Ea, single-beat Ees, Ea/Ees.\nResearch use only; not a diagnosis.')
     .version(toolVersion(), '-V, --version', 'print the version')
-    .showHelpAfterError('(run with --help for usage)')
     .exitOverride()
-    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+    .configureOutput({ writeErr: (s) => process.stderr.write(s), outputError: (s, write) => write(commanderMessage(s)) });
 
   const assess = program
     .command('assess')
@@ -92,6 +91,26 @@ function trackInputFile(program: Command): void {
     });
     trackInputFile(cmd);
   }
+}
+
+/**
+ * commander's own usage errors in our one message style: the field, the value, what is accepted.
+ * (Exit code 2 comes from reportError.)
+ */
+export function commanderMessage(text: string): string {
+  const message = text.replace(/^error:\s*/, '').trim();
+  const rules: [RegExp, (m: RegExpExecArray) => string][] = [
+    [/^unknown option '([^']+)'(.*)$/s, (m) => `option: got "${m[1]}"; unknown${m[2] ? ` (${m[2].replace(/^[\s\n]*\(?|\)?$/g, '').trim()})` : ''}; accepted: an option listed by --help`],
+    [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
+    [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
+    [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, report (see --help)`],
+  ];
+  for (const [pattern, format] of rules) {
+    const m = pattern.exec(message);
+    if (m) return `elastimate: ${format(m)}\n`;
+  }
+  return `elastimate: ${message}; accepted: see --help\n`;
 }
 
 export async function main(argv: string[]): Promise<number> {
