@@ -20,18 +20,12 @@ import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
+import { FILE_MODE } from '../records/file-mode.js';
+import { info } from './messages.js';
 import { checkOutputPath } from './output-files.js';
 import { BatchSheet, RecordPieces } from '../records/batch-row.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
-// Kept here rather than imported from records/store.ts and cli/record-common.ts, whose module
-// graphs (the subject-file schema and its zod) would add some 50 ms to the start of every batch.
-/** Owner read and write only, as every file the tool writes (records/store.ts FILE_MODE). */
-const FILE_MODE = 0o600;
-/** A line for the user on stderr, as record-common.ts `info` writes it. */
-function info(message: string): void {
-  process.stderr.write(`elastimate: ${message}\n`);
-}
 
 /** Read in 64 KiB chunks: a piece of about a thousand rows, whose short-lived objects stay in the young generation. */
 const CHUNK_BYTES = 1 << 16;

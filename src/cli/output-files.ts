@@ -8,6 +8,7 @@ import { statSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, extname, resolve } from 'node:path';
 import { InputError, showValue } from '../errors.js';
+import { FILE_MODE } from '../records/file-mode.js';
 
 export interface OutputPathRule {
   /** The option as the user typed it, e.g. `--svg` or `--out`. */
@@ -60,7 +61,7 @@ export async function writeTextAtomically(path: string, text: string, option: st
   const writeFileAtomic = createRequire(import.meta.url)('write-file-atomic') as typeof import('write-file-atomic');
   try {
     // Reports and diagrams carry a subject's data: readable by the owner only, like subject files.
-    await writeFileAtomic(path, text, { encoding: 'utf8', fsync: true, mode: 0o600 });
+    await writeFileAtomic(path, text, { encoding: 'utf8', fsync: true, mode: FILE_MODE });
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code ?? (err instanceof Error ? err.message : String(err));
     throw new InputError({ field: option, value: showValue(path), reason: `could not write the file (${code})`, accepted: 'a writable file path in an existing folder' });

@@ -13,13 +13,7 @@ import { canPrompt } from './assess-command.js';
 import { terminalStyle } from './output.js';
 import { toolVersion } from './package-info.js';
 
-export function warn(message: string): void {
-  process.stderr.write(`elastimate: warning: ${message}\n`);
-}
-
-export function info(message: string): void {
-  process.stderr.write(`elastimate: ${message}\n`);
-}
+export { info, warn } from './messages.js';
 
 /** `--date`: a real calendar date, YYYY-MM-DD. */
 export function parseDateOption(value: unknown, field = 'date'): string {

@@ -46,7 +46,9 @@ export function fileLibraries(): FileLibraries {
   return libraries;
 }
 
-export const FILE_MODE = 0o600;
+import { FILE_MODE } from './file-mode.js';
+
+export { FILE_MODE };
 /** Default age after which a lock is taken over (proper-lockfile's floor is 2000 ms). */
 export const DEFAULT_STALE_MS = 5000;
 const DOC_HINT = 'see docs/subject-file.md';

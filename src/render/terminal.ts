@@ -3,7 +3,6 @@
  * an assessment and a Style in, text out.
  */
 import type { Assessment } from '../assessment/assess.js';
-import type { ResultKey } from '../assessment/compute.js';
 import { fieldByKey, type NumericKey } from '../assessment/fields.js';
 import type { Quantity } from '../assessment/result.js';
 import { formatNumber, formatQuantity, formatValue, pad, padLeft } from './format.js';
@@ -160,4 +159,3 @@ export function wrap(text: string, width: number): string[] {
   return lines;
 }
 
-export type { ResultKey };

@@ -4,63 +4,11 @@
  * the report follows, exit code 0; Ctrl-C leaves quietly with code 130.
  * The terminal is driven by test/cli/fixtures/pty-run.py (Python's pty module).
  */
-import { spawn, spawnSync } from 'node:child_process';
-import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { BIN, FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, STACK_FRAME, requireBuild } from './fixtures/run-cli.js';
+import { ptyUnavailable, runInPty } from './fixtures/pty.js';
 
-const DRIVER = join(ROOT, 'test', 'cli', 'fixtures', 'pty-run.py');
-
-/** Why no pseudo-terminal can be used here, or null when one can. */
-function ptyUnavailable(): string | null {
-  const probe = spawnSync('python3', ['-c', 'import os, pty; m, s = os.openpty(); os.close(m); os.close(s)'], { encoding: 'utf8', timeout: 10_000 });
-  if (probe.error) return `python3 not runnable (${probe.error.message})`;
-  if (probe.status !== 0) return `cannot open a pseudo-terminal (${probe.stderr.trim().split('\n').pop() ?? 'unknown error'})`;
-  return null;
-}
 const unavailable = ptyUnavailable();
-
-interface PtyStep {
-  expect?: string;
-  send?: string;
-  timeout?: number;
-}
-interface PtyRun {
-  /** Everything shown on the terminal, ANSI sequences removed. */
-  screen: string;
-  exitCode: number | null;
-  failedStep: number | null;
-  reason: string;
-}
-
-const ANSI = /\x1b\[[0-9;?]*[ -/]*[@-~]|\x1b\][^\x07]*\x07|\x1b[()][A-Za-z0-9]|\x1b[=>78]/g;
-
-function runInPty(args: string[], steps: PtyStep[]): Promise<PtyRun> {
-  const env: NodeJS.ProcessEnv = { ...process.env, TERM: 'xterm-256color' };
-  delete env.FORCE_COLOR;
-  delete env.NO_COLOR;
-  return new Promise((resolve, reject) => {
-    const child = spawn('python3', [DRIVER, JSON.stringify(steps), '--', process.execPath, BIN, ...args], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
-    let out = '';
-    let err = '';
-    child.stdout.setEncoding('utf8').on('data', (d: string) => (out += d));
-    child.stderr.setEncoding('utf8').on('data', (d: string) => (err += d));
-    const timer = setTimeout(() => child.kill('SIGKILL'), 90_000);
-    child.on('error', reject);
-    child.on('close', () => {
-      clearTimeout(timer);
-      const last = err.trim().split('\n').pop() ?? '';
-      let result: { exitCode: number | null; failedStep: number | null; reason: string };
-      try {
-        result = JSON.parse(last) as typeof result;
-      } catch {
-        reject(new Error(`pty driver failed: ${err}`));
-        return;
-      }
-      resolve({ screen: out.replace(ANSI, ''), ...result });
-    });
-  });
-}
 
 const ENTER = '\r';
 const DOWN = '\x1b[B';

@@ -3,49 +3,17 @@
  * weight, rhythm, valve findings) is offered from the previous visit. Driven in a pseudo-terminal
  * by test/cli/fixtures/pty-run.py, as a person would answer; needs dist/ (`npm run build`).
  */
-import { spawn, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { suggestionsFrom } from '../../src/cli/record-add-command.js';
 import type { SubjectFile } from '../../src/records/subject-schema.js';
-import { BIN, FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, STACK_FRAME, requireBuild } from './fixtures/run-cli.js';
+import { ptyUnavailable, runInPty } from './fixtures/pty.js';
 
-const DRIVER = join(ROOT, 'test', 'cli', 'fixtures', 'pty-run.py');
 const ENTER = '\r';
-const ANSI = /\x1b\[[0-9;?]*[ -/]*[@-~]|\x1b\][^\x07]*\x07|\x1b[()][A-Za-z0-9]|\x1b[=>78]/g;
-
-function ptyUnavailable(): string | null {
-  const probe = spawnSync('python3', ['-c', 'import os, pty; m, s = os.openpty(); os.close(m); os.close(s)'], { encoding: 'utf8', timeout: 10_000 });
-  if (probe.error) return `python3 not runnable (${probe.error.message})`;
-  if (probe.status !== 0) return 'cannot open a pseudo-terminal';
-  return null;
-}
 const unavailable = ptyUnavailable();
-
-function runInPty(args: string[], steps: { expect?: string; send?: string }[]): Promise<{ screen: string; exitCode: number | null; failedStep: number | null; reason: string }> {
-  const env: NodeJS.ProcessEnv = { ...process.env, TERM: 'xterm-256color' };
-  delete env.FORCE_COLOR;
-  delete env.NO_COLOR;
-  return new Promise((resolve, reject) => {
-    const child = spawn('python3', [DRIVER, JSON.stringify(steps), '--', process.execPath, BIN, ...args], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
-    let out = '';
-    let err = '';
-    child.stdout.setEncoding('utf8').on('data', (d: string) => (out += d));
-    child.stderr.setEncoding('utf8').on('data', (d: string) => (err += d));
-    const timer = setTimeout(() => child.kill('SIGKILL'), 90_000);
-    child.on('error', reject);
-    child.on('close', () => {
-      clearTimeout(timer);
-      try {
-        resolve({ screen: out.replace(ANSI, ''), ...(JSON.parse(err.trim().split('\n').pop() ?? '') as { exitCode: number | null; failedStep: number | null; reason: string }) });
-      } catch {
-        reject(new Error(`pty driver failed: ${err}`));
-      }
-    });
-  });
-}
 
 const previous: SubjectFile = {
   format: 'elastimate-subject',
