@@ -93,7 +93,7 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     const j = parseJson(await runCli(['assess', ...WORKED, '--hr', '64', '--json']));
     expect(j.format).toBe('elastimate-assessment');
     const units: Record<string, string> = {
-      pes: 'mmHg', map: 'mmHg', sv: 'mL', co: 'L/min', ea: 'mmHg/mL', tNd: '', endAvg: '', endEst: '', ees: 'mmHg/mL', eaEes: '', v0: 'mL',
+      pes: 'mmHg', map: 'mmHg', svUsed: 'mL', co: 'L/min', ea: 'mmHg/mL', tNd: '', normalizedElastanceAvg: '', normalizedElastanceEst: '', ees: 'mmHg/mL', eaEes: '', v0: 'mL',
     };
     for (const [key, unit] of Object.entries(units)) {
       const q = j.results[key];
@@ -112,11 +112,11 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     const v = (k: string): number => r[k]!.value as number;
     expect(v('pes')).toBeCloseTo(108, 6); // 0.9 × SBP, Kelly 1992
     expect(v('map')).toBeCloseTo(80 + 40 / 3, 6); // DBP + PP/3, common practice
-    expect(v('sv')).toBeCloseTo(70, 6); // EDV − ESV
+    expect(v('svUsed')).toBeCloseTo(70, 6); // EDV − ESV
     expect(v('co')).toBeCloseTo((70 * 64) / 1000, 6); // SV × HR / 1000, common practice
     expect(v('tNd')).toBeCloseTo(0.23684, 5); // PEP / (PEP + ET), Chen 2001
-    expect(v('endAvg')).toBeCloseTo(0.33614, 5);
-    expect(v('endEst')).toBeCloseTo(0.37243, 5);
+    expect(v('normalizedElastanceAvg')).toBeCloseTo(0.33614, 5);
+    expect(v('normalizedElastanceEst')).toBeCloseTo(0.37243, 5);
     expect(v('ees')).toBeCloseTo(1.5258, 4);
     expect(v('ea')).toBeCloseTo(1.5429, 4);
     expect(v('eaEes')).toBeCloseTo(1.0112, 4);
@@ -144,7 +144,7 @@ describe('assess --input: a visit file, flags override it', () => {
     expect(overridden.inputs.hr).toBe(80);
     expect(overridden.inputs.edv).toBe(plain.inputs.edv);
     // CO scales with the overriding heart rate (SV × HR / 1000).
-    const sv = overridden.results.sv!.value as number;
+    const sv = overridden.results.svUsed!.value as number;
     expect(overridden.results.co!.value).toBeCloseTo((sv * 80) / 1000, 6);
   });
 
