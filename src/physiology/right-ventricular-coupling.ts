@@ -38,7 +38,7 @@ export const TAPSE_PASP_CUT_OFFS: readonly RightHeartCutOff[] = [
     below: 0.38,
     population: 'heart failure with reduced ejection fraction',
     finding: 'uncoupling against pressure–volume loops',
-    source: 'Eur Heart J Cardiovasc Imaging 2021 (doi 10.1093/ehjci/jeaa285)',
+    source: 'Eur Heart J Cardiovasc Imaging 2021, doi 10.1093/ehjci/jeaa285',
   },
 ];
 

@@ -12,6 +12,7 @@ import type { Comparison, LeastSignificantChange } from '../records/compare.js';
 import type { SubjectInfo } from '../records/subject-schema.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
 import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
+import { rightHeartRows } from './right-heart-text.js';
 import { comparisonSummary } from './series.js';
 import { renderTrendChart, type TrendChartSpec } from './trend-chart.js';
 
@@ -213,6 +214,7 @@ export function mechanicsRows(a: Assessment): { group: string; label: string; va
       ? `${c.anchorPressure} mmHg at ${formatNumber(c.anchorVolume, 0)} mL; ${c.anchorPressure === 15 ? 'EDP > 22 mmHg: anchored at 15 mmHg (Klotz protocol)' : 'single-beat, from one point'}`
       : `not drawn: ${m.diastolic.reason ?? 'not computable'}`,
   });
+  for (const r of rightHeartRows(a)) rows.push({ group: 'Right heart', label: r.label.trim(), value: r.value, note: r.note });
   return rows;
 }
 

@@ -7,6 +7,7 @@ import { fieldByKey, type NumericKey } from '../assessment/fields.js';
 import type { Quantity } from '../assessment/result.js';
 import { formatNumber, formatQuantity, formatValue, pad, padLeft } from './format.js';
 import { mechanicsSections } from './mechanics-text.js';
+import { rightHeartRows } from './right-heart-text.js';
 import { plainStyle, type Style } from './style.js';
 
 const LABEL_WIDTH = 34;
@@ -76,6 +77,12 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('Ea/Ees', r.eaEes, r.eaEes.value !== null ? (r.eaEes.value > 1.2 ? s.caution('above the 1.2 cut-off') : s.dim('at or below the 1.2 cut-off')) : undefined);
   line('  cross-check 1/EF − 1', r.eaEesFromEf);
 
+  const rightHeart = rightHeartRows(a);
+  if (rightHeart.length) {
+    section('Right heart: RV–pulmonary artery coupling');
+    for (const row of rightHeart) out.push(`  ${pad(row.label, LABEL_WIDTH)}${row.value === '—' ? s.dim(row.value) : s.strong(row.value)}${row.note ? s.dim('  ' + row.note) : ''}`);
+  }
+
   if (options.recheck) {
     section('Recheck: the same subject under each method variant');
     out.push(...renderVariants(a, s));
@@ -131,7 +138,7 @@ function inputRows(a: Assessment): InputRow[] {
   const readings = (list: number[]) => (list.length > 1 ? `mean of ${list.length} readings: ${list.map((x) => formatNumber(x, 0)).join(', ')}` : 'one reading');
   numeric('sbp', readings(i.sbpReadings));
   numeric('dbp', readings(i.dbpReadings));
-  for (const k of ['hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'height', 'weight', 'age', 'pesMeasured', 'edp', 'eOverEPrime', 'lvids', 'pwts'] as NumericKey[]) numeric(k);
+  for (const k of ['hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'height', 'weight', 'age', 'pesMeasured', 'edp', 'eOverEPrime', 'lvids', 'pwts', 'tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse'] as NumericKey[]) numeric(k);
   rows.push({ label: 'Rhythm', value: i.rhythm, source: '' });
   const valves = [
     i.aorticStenosis && 'aortic stenosis',

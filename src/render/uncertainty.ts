@@ -16,7 +16,8 @@ import { renderTerminal, type TerminalOptions } from './terminal.js';
 export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
   sbp: 'SBP', dbp: 'DBP', hr: 'heart rate', edv: 'EDV', esv: 'ESV', ef: 'reported EF', sv: 'Doppler SV',
   lvotDiameter: 'LVOT diameter', lvotVti: 'LVOT VTI', pep: 'PEP', et: 'ET', pesMeasured: 'measured Pes',
-  height: 'height', weight: 'weight',
+  height: 'height', weight: 'weight', tapse: 'TAPSE', trVelocity: 'TR velocity', rap: 'right-atrial pressure',
+  ivc: 'IVC diameter', ivcCollapse: 'IVC collapse',
 };
 
 const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
@@ -31,6 +32,8 @@ const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'ees', label: 'Ees' },
   { key: 'eaEes', label: 'Ea/Ees' },
   { key: 'v0', label: 'V0' },
+  { key: 'pasp', label: 'PASP' },
+  { key: 'tapsePasp', label: 'TAPSE/PASP' },
 ];
 
 /** A probability or fraction as a percentage: one decimal near 0 % and 100 %, none between; never rounded to 0 or 100 when it is not. */
