@@ -24,6 +24,8 @@ interface Step {
 interface Bound {
   column: Float64Array;
   below: number;
+  /** Zero is a possible value (a right-atrial pressure, a collapse of 0 %): the draw must be ≥ 0, not > 0. */
+  zeroAllowed: boolean;
 }
 
 interface Relation {
@@ -137,7 +139,7 @@ export function compileDraws(plan: Plan, nominal: Float64Array, varying: readonl
     const column = new Float64Array(chunk);
     columns[s] = column;
     const spec = GRAPH_INPUTS[s]!;
-    bounds.push({ column, below: 'below' in spec ? spec.below : Number.POSITIVE_INFINITY });
+    bounds.push({ column, below: 'below' in spec ? spec.below : Number.POSITIVE_INFINITY, zeroAllowed: 'zeroAllowed' in spec && spec.zeroAllowed === true });
   }
   // A relation can break when either of its inputs is drawn; the other then
   // varies too (it may be lost), refilled with the visit's value each chunk.
@@ -193,9 +195,16 @@ export function compileDraws(plan: Plan, nominal: Float64Array, varying: readonl
       for (const b of bounds) {
         const c = b.column;
         const below = b.below;
-        for (let i = 0; i < n; i++) {
-          const x = c[i]!;
-          if (!(x > 0 && x < below)) c[i] = Number.NaN;
+        if (b.zeroAllowed) {
+          for (let i = 0; i < n; i++) {
+            const x = c[i]!;
+            if (!(x >= 0 && x < below)) c[i] = Number.NaN;
+          }
+        } else {
+          for (let i = 0; i < n; i++) {
+            const x = c[i]!;
+            if (!(x > 0 && x < below)) c[i] = Number.NaN;
+          }
         }
       }
       for (const r of relations) {

@@ -25,9 +25,9 @@ export const GRAPH_INPUTS = [
   { key: 'weight', needs: 'weight' },
   { key: 'tapse', needs: 'TAPSE' },
   { key: 'trVelocity', needs: 'a peak tricuspid regurgitant velocity (a measurable TR jet)' },
-  { key: 'rap', needs: 'a right-atrial pressure' },
+  { key: 'rap', needs: 'a right-atrial pressure', zeroAllowed: true },
   { key: 'ivc', needs: 'the IVC diameter' },
-  { key: 'ivcCollapse', needs: 'the IVC collapse with a sniff', below: 100 },
+  { key: 'ivcCollapse', needs: 'the IVC collapse with a sniff', below: 100, zeroAllowed: true },
 ] as const satisfies readonly GraphInput[];
 
 export type GraphInputKey = (typeof GRAPH_INPUTS)[number]['key'];
