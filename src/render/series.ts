@@ -16,7 +16,8 @@ import { wrap } from './terminal.js';
 
 export const SERIES_FORMAT = 'elastimate-series';
 export const COMPARISON_FORMAT = 'elastimate-comparison';
-export const SERIES_FORMAT_VERSION = 1;
+/** 2: the result keys of docs/json-output.md, format version 2. */
+export const SERIES_FORMAT_VERSION = 2;
 
 /** A visit as the comparison views name it. */
 export interface VisitRef {

@@ -7,6 +7,7 @@ import { chmodSync, closeSync, existsSync, mkdtempSync, openSync, readFileSync, 
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { NUMERIC_FIELDS } from '../../src/assessment/fields.js';
 import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, plainEnv, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
 
 // The hand-worked single-beat example of ../shared/method-notes.md §4 (computed there, not published):
@@ -122,6 +123,29 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     expect(v('eaEes')).toBeCloseTo(1.0112, 4);
     // V0 = ESV − Pes / Ees (Chen 2001 ESPVR), from the reported numbers themselves.
     expect(v('v0')).toBeCloseTo(50 - v('pes') / v('ees'), 6);
+  });
+
+  it('format version 2: no key outside the inputs equals an input key (results report values used as <key>Used)', async () => {
+    const run = await runCli(['assess', '--input', join(ROOT, 'cases', 'hypertension-trial.visit.json'), '--sv', '75', '--edp', '14', '--uncertainty', '--draws', '1000', '--json']);
+    const j = JSON.parse(run.stdout) as Record<string, unknown>;
+    expect(j.formatVersion).toBe(2);
+    const inputKeys = new Set(NUMERIC_FIELDS.map((f) => f.key));
+    const clashes: string[] = [];
+    const walk = (value: unknown, path: string): void => {
+      if (Array.isArray(value)) value.forEach((v, i) => walk(v, `${path}[${i}]`));
+      else if (value !== null && typeof value === 'object') {
+        for (const [k, v] of Object.entries(value)) {
+          if (inputKeys.has(k as never)) clashes.push(`${path}.${k}`);
+          walk(v, `${path}.${k}`);
+        }
+      }
+    };
+    for (const [k, v] of Object.entries(j)) if (k !== 'inputs' && k !== 'inputUnits') walk(v, k);
+    expect(clashes).toEqual([]);
+    const results = j.results as Record<string, unknown>;
+    expect(Object.keys(results)).toEqual(expect.arrayContaining(['svUsed', 'efUsed', 'normalizedElastanceAvg', 'normalizedElastanceEst']));
+    expect(JSON.stringify(j)).not.toMatch(/"ci95"|"endAvg"|"endEst"/);
+    expect((results.ea as { interval95?: unknown }).interval95).toHaveLength(2);
   });
 
   it('makes co null with a reason when the heart rate is missing, and keeps everything else', async () => {
