@@ -260,27 +260,31 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
 /** The method error of draws start … start + n − 1 (see simulate). */
 function methodErrorChunk(sim: Simulation, method: { ea: number | null; calibrated: number }, ea: Float64Array, ees: Float64Array, w: Float64Array, start: number, n: number): void {
   const { slope, intercept, see } = CHEN_CALIBRATION;
-  const { onlyEes, onlyEaEes, combinedEes, combinedEaEes } = sim as Required<{ [K in keyof Simulation]: NonNullable<Simulation[K]> }> & Simulation;
+  // simulate allocates these three whenever there is a method error to draw.
+  const onlyEes = sim.onlyEes!;
+  const combinedEes = sim.combinedEes!;
+  const combinedEaEes = sim.combinedEaEes!;
+  const onlyEaEes = sim.onlyEaEes;
   const ea0 = method.ea ?? Number.NaN;
   const calibrated = method.calibrated;
   for (let i = 0; i < n; i++) {
     const d = start + i;
     const onlyInvasive = calibrated + see * w[i]!;
-    onlyEes![d] = onlyInvasive;
+    onlyEes[d] = onlyInvasive;
     if (onlyEaEes !== null) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
     const e = ees[i]!;
     if (e - e === 0) {
       const invasive = slope * e + intercept + see * w[i]!;
-      combinedEes![d] = invasive;
+      combinedEes[d] = invasive;
       if (invasive > 0) {
         const r = ea[i]! / invasive;
-        combinedEaEes![d] = r;
+        combinedEaEes[d] = r;
         sim.combinedCount++;
         if (r > COUPLING_CUTOFF) sim.aboveCombined++;
-      } else combinedEaEes![d] = Number.NaN;
+      } else combinedEaEes[d] = Number.NaN;
     } else {
-      combinedEes![d] = Number.NaN;
-      combinedEaEes![d] = Number.NaN;
+      combinedEes[d] = Number.NaN;
+      combinedEaEes[d] = Number.NaN;
     }
   }
 }
