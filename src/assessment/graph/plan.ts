@@ -4,7 +4,7 @@
  * and the evaluation of a plan over a vector of values. Slots of the value
  * vector: the inputs in GRAPH_INPUTS order, then the nodes in NODES order.
  */
-import type { NumericKey } from '../fields.js';
+import { BSA_METHODS, MAP_METHODS, PES_METHODS, type NumericKey } from '../fields.js';
 import type { Quantity } from '../result.js';
 import { quantity } from '../result.js';
 import { GRAPH_INPUTS, GRAPH_INPUT_KEYS, type GraphInputKey } from './inputs.js';
@@ -135,13 +135,23 @@ function buildPlan(present: readonly boolean[], selection: Selection): Plan {
 }
 
 const plans = new Map<number, Plan>();
-const PES_CODES = ['sbp90', 'weighted', 'measured'] as const;
+/** Every value of each method choice: a new choice is a field of Selection and a line here (the type checker asks for it). */
+const SELECTION_VALUES: { readonly [K in keyof Selection]: readonly Selection[K][] } = {
+  pesMethod: PES_METHODS,
+  strokeVolumeSource: ['doppler', 'volumetric'],
+  mapMethod: MAP_METHODS,
+  bsaMethod: BSA_METHODS,
+};
+const SELECTION_KEYS = Object.keys(SELECTION_VALUES) as (keyof Selection)[];
 
-/** A number naming the selection and the inputs present: the plan cache's key (a cohort has few patterns). */
+/** A number naming the selection and the inputs present (mixed radix): the plan cache's key (a cohort has few patterns). */
 function planCode(presentMask: number, selection: Selection): number {
-  const pes = PES_CODES.indexOf(selection.pesMethod);
-  const choices = pes * 8 + (selection.strokeVolumeSource === 'doppler' ? 4 : 0) + (selection.mapMethod === 'meaney' ? 2 : 0) + (selection.bsaMethod === 'dubois' ? 1 : 0);
-  return presentMask * 32 + choices;
+  let code = presentMask;
+  for (const k of SELECTION_KEYS) {
+    const values = SELECTION_VALUES[k] as readonly string[];
+    code = code * values.length + values.indexOf(selection[k]);
+  }
+  return code;
 }
 
 function planByCode(code: number, present: () => boolean[], selection: Selection): Plan {
@@ -151,13 +161,6 @@ function planByCode(code: number, present: () => boolean[], selection: Selection
     plans.set(code, plan);
   }
   return plan;
-}
-
-/** The plan for a visit with these inputs present (by GRAPH_INPUTS slot) under these choices. */
-export function planFor(present: readonly boolean[], selection: Selection): Plan {
-  let mask = 0;
-  for (let i = 0; i < INPUT_COUNT; i++) if (present[i]) mask += 2 ** i;
-  return planByCode(planCode(mask, selection), () => [...present], selection);
 }
 
 /** The plan for a visit's inputs under these choices. */
@@ -182,7 +185,7 @@ const readInputs: InputReader = (() => {
 })();
 
 /** Which graph inputs a visit has. */
-export function presentInputs(inputs: Readonly<Record<NumericKey, number | null>>): boolean[] {
+function presentInputs(inputs: Readonly<Record<NumericKey, number | null>>): boolean[] {
   const present = new Array<boolean>(INPUT_COUNT);
   for (let i = 0; i < INPUT_COUNT; i++) present[i] = inputs[GRAPH_INPUT_KEYS[i]!] !== null;
   return present;
@@ -241,11 +244,6 @@ function compileEvaluator(plan: Plan): Evaluator {
 
 const scratchValues = new Float64Array(SLOT_COUNT);
 const scratchReasons: (string | undefined)[] = new Array<string | undefined>(SLOT_COUNT);
-
-/** Every result of a plan for these inputs, with unit, method and (when not computable) reason, in NODES order. */
-export function resultsOf(plan: Plan, inputs: Readonly<Record<NumericKey, number | null>>): Results {
-  return resultsFrom(plan, inputVector(inputs, scratchValues));
-}
 
 /** Every result of a visit's inputs under these choices (planForInputs and resultsOf in one pass over the inputs). */
 export function resultsFor(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Results {
