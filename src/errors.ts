@@ -85,7 +85,7 @@ export function plainCause(code: string | undefined): string {
     case 'EACCES':
       return 'permission denied';
     case 'EPERM':
-      return 'the system does not allow changing it (the file or its folder may be marked immutable)';
+      return 'the system does not allow the change; the file or its folder may be marked immutable';
     case 'EROFS':
       return 'the file system is read-only';
     case 'EIO':

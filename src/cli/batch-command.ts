@@ -60,7 +60,8 @@ function write(stream: Writable, bytes: Uint8Array): Promise<void> {
 function finish(stream: Writable): Promise<void> {
   return new Promise<void>((ok, fail) => {
     stream.once('error', fail);
-    stream.end(() => ok());
+    // A write that failed after it was buffered (a full disk) surfaces here, not at write().
+    stream.end((err?: Error | null) => (err ? fail(err) : ok()));
   });
 }
 
@@ -249,6 +250,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     }
     if (safe) {
       await finish(output);
+      if (outputFailure) throw outputFailure;
       safe.commit();
     }
   } catch (err) {
@@ -258,7 +260,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     if (safe) {
       output.destroy();
       safe.abort();
-      if (err === outputFailure) throw writeFault(String(opts.out), err);
+      if (err === outputFailure) throw writeFault(String(opts.out), err, safe.existed);
     }
     throw err;
   }

@@ -153,11 +153,11 @@ export function checkOutputPath(raw: unknown, rule: OutputPathRule, fs: SafeWrit
 }
 
 /** A system error while writing `shown`, in plain words. */
-export function writeFault(shown: string, err: unknown): FileFault | InputError {
+export function writeFault(shown: string, err: unknown, existed = true): FileFault | InputError {
   if (err instanceof FileFault || err instanceof InputError) return err;
   const code = (err as NodeJS.ErrnoException).code;
   const cause = code ? plainCause(code) : err instanceof Error ? err.message : String(err);
-  return new FileFault(shown, 'cannot be written', cause, code ?? '', 'the file was left as it was');
+  return new FileFault(shown, 'cannot be written', cause, code ?? '', existed ? 'the file was left as it was' : 'nothing was written');
 }
 
 // ---- temporary files: names, the signal clean-up, stale ones ----
@@ -284,6 +284,8 @@ export class SafeWrite {
   private readonly fs: SafeWriteFs;
   private readonly rule: OutputPathRule;
   private readonly shown: string;
+  /** Whether the target existed when the write began (for the wording of a failure). */
+  readonly existed: boolean;
   private open = true;
 
   /** Use beginSafeWrite. */
@@ -297,6 +299,7 @@ export class SafeWrite {
     const problem = targetProblem(fs, target, shown, options);
     if (problem) throw problem;
     const existing = lstatOrNull(fs, target);
+    this.existed = existing !== null;
     const mode = options.mode ?? FILE_MODE;
     let fd: number;
     try {
@@ -311,7 +314,7 @@ export class SafeWrite {
       }
     } catch (err) {
       untrack(this.tempPath);
-      throw writeFault(shown, err);
+      throw writeFault(shown, err, existing !== null);
     }
     this.fd = fd;
     try {
@@ -320,7 +323,7 @@ export class SafeWrite {
       if (existing && process.getuid?.() === 0 && (existing.uid !== 0 || existing.gid !== 0)) fs.fchownSync(fd, existing.uid, existing.gid);
     } catch (err) {
       this.abort();
-      throw writeFault(shown, err);
+      throw writeFault(shown, err, existing !== null);
     }
   }
 
@@ -332,7 +335,7 @@ export class SafeWrite {
       while (done < bytes.length) done += this.fs.writeSync(this.fd, bytes, done, bytes.length - done);
     } catch (err) {
       this.abort();
-      throw writeFault(this.shown, err);
+      throw writeFault(this.shown, err, this.existed);
     }
   }
 
@@ -346,7 +349,7 @@ export class SafeWrite {
       this.fs.renameSync(this.tempPath, this.target);
     } catch (err) {
       this.abort();
-      throw writeFault(this.shown, err);
+      throw writeFault(this.shown, err, this.existed);
     }
     untrack(this.tempPath);
     fsyncFolder(this.fs, dirname(this.target));
@@ -376,7 +379,7 @@ export class SafeWrite {
       }
     } catch (err) {
       this.abort();
-      throw writeFault(this.shown, err);
+      throw writeFault(this.shown, err, this.existed);
     }
     untrack(this.tempPath);
     fsyncFolder(this.fs, dirname(this.target));

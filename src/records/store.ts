@@ -23,7 +23,7 @@
  * Nothing here reads the clock on its own: the caller passes `now`.
  */
 import * as fs from 'node:fs';
-import { lstatSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { accessSync, constants as fsConstants, lstatSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { basename, dirname, resolve } from 'node:path';
 import { FileFault, InputError, plainCause, showValue, type InputProblem } from '../errors.js';
@@ -209,7 +209,12 @@ function writeBackup(path: string, bytes: Buffer, now: Date, tag: string): strin
   function* names(): Generator<string> {
     for (let n = 1; n < 1000; n++) yield n === 1 ? `${base}.bak` : `${base}-${n}.bak`;
   }
-  return writeNewFileSafely(names(), bytes, { option: 'backup', mode: FILE_MODE });
+  try {
+    return writeNewFileSafely(names(), bytes, { option: 'backup', mode: FILE_MODE });
+  } catch (err) {
+    if (!(err instanceof FileFault)) throw err;
+    throw new FileFault(path, 'cannot be changed', `its backup ${basename(err.path)} cannot be written: ${plainCause(err.code)}`, err.code);
+  }
 }
 
 /**
@@ -267,6 +272,12 @@ export async function updateSubjectFile(path: string, update: SubjectUpdate, opt
   }
   if (!folderOk) throw lockProblem(path, Object.assign(new Error('no folder'), { code: 'ENOENT' }));
   checkChangeable(path, target);
+  // proper-lockfile retries every failure until its retries run out: a folder that cannot be written is said at once.
+  try {
+    accessSync(dirname(target), fsConstants.W_OK);
+  } catch (err) {
+    throw lockProblem(path, err);
+  }
 
   let compromised: Error | undefined;
   let release: () => Promise<void>;
