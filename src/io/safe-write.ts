@@ -99,10 +99,10 @@ function lstatOrNull(fs: SafeWriteFs, path: string): Stats | null {
 }
 
 /** The refusal of an output path: an InputError naming the option, the path and why. */
-function refusal(rule: OutputPathRule, raw: unknown, reason: string): InputError {
+function refusal(rule: OutputPathRule, raw: unknown, reason?: string): InputError {
   const ext = rule.extensions ?? [];
   const accepted = ext.length ? `a file path ending in ${ext.join(' or ')}, in an existing folder` : 'a file path in an existing folder';
-  return new InputError({ field: rule.option, value: showValue(raw), reason, accepted });
+  return new InputError({ field: rule.option, value: showValue(raw), ...(reason ? { reason } : {}), accepted });
 }
 
 /** Why `target` must not be written (an InputError), or nothing when it may be. */
@@ -136,7 +136,7 @@ function targetProblem(fs: SafeWriteFs, path: string, raw: unknown, rule: Output
  * file, or is one of the command's inputs.
  */
 export function checkOutputPath(raw: unknown, rule: OutputPathRule, fs: SafeWriteFs = nodeSafeWriteFs): string {
-  if (typeof raw !== 'string' || raw.trim() === '') throw refusal(rule, raw, 'empty');
+  if (typeof raw !== 'string' || raw.trim() === '') throw refusal(rule, raw);
   const path = resolve(raw);
   const ext = rule.extensions ?? [];
   if (ext.length && !ext.includes(extname(path).toLowerCase())) throw refusal(rule, raw, 'wrong file type');
@@ -341,18 +341,12 @@ export class SafeWrite {
 
   /** Flush, close and rename over the target; then fsync the folder and clear stale temporary files. */
   commit(): void {
-    try {
-      this.fs.fsyncSync(this.fd);
-      this.closeFd();
+    this.finish(() => {
       const problem = targetProblem(this.fs, this.target, this.shown, this.rule);
       if (problem) throw problem;
       this.fs.renameSync(this.tempPath, this.target);
-    } catch (err) {
-      this.abort();
-      throw writeFault(this.shown, err, this.existed);
-    }
-    untrack(this.tempPath);
-    fsyncFolder(this.fs, dirname(this.target));
+      return true;
+    });
     removeStaleTemps(this.target, this.fs);
   }
 
@@ -361,25 +355,35 @@ export class SafeWrite {
    * file): for backups. Returns false, removing the temporary file, when it does.
    */
   commitNew(): boolean {
-    try {
-      this.fs.fsyncSync(this.fd);
-      this.closeFd();
+    return this.finish(() => {
       try {
         this.fs.linkSync(this.tempPath, this.target);
         this.fs.unlinkSync(this.tempPath);
       } catch (err) {
         const code = (err as NodeJS.ErrnoException).code;
-        if (code === 'EEXIST') {
-          this.abort();
-          return false;
-        }
+        if (code === 'EEXIST') return false;
         // A file system without hard links: rename, having made sure the name is free.
         if (!(code === 'EPERM' || code === 'ENOTSUP' || code === 'EOPNOTSUPP' || code === 'ENOSYS') || lstatOrNull(this.fs, this.target)) throw err;
         this.fs.renameSync(this.tempPath, this.target);
       }
+      return true;
+    });
+  }
+
+  /** fsync and close the temporary file, then `place` it; on failure or refusal (false) it is removed. */
+  private finish(place: () => boolean): boolean {
+    let placed: boolean;
+    try {
+      this.fs.fsyncSync(this.fd);
+      this.closeFd();
+      placed = place();
     } catch (err) {
       this.abort();
       throw writeFault(this.shown, err, this.existed);
+    }
+    if (!placed) {
+      this.abort();
+      return false;
     }
     untrack(this.tempPath);
     fsyncFolder(this.fs, dirname(this.target));

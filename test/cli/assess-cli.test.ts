@@ -311,12 +311,12 @@ describe('version, help, unknown options', () => {
   });
 
   // Regression: a failing standard output (here a full device) used to end in an uncaught exception and a stack dump.
-  it.runIf(existsSync('/dev/full'))('an output that cannot be written (stdout on /dev/full): one line, exit 1, no stack trace', () => {
+  it.runIf(existsSync('/dev/full'))('an output that cannot be written (stdout on /dev/full): one line in plain words, exit 3 (docs/files.md), no stack trace', () => {
     const full = openSync('/dev/full', 'w');
     try {
       const run = spawnSync(process.execPath, [join(ROOT, 'bin', 'elastimate.js'), 'assess', '--no-input', ...WORKED], { cwd: ROOT, env: plainEnv(), stdio: ['ignore', full, 'pipe'], encoding: 'utf8', timeout: 15_000 });
-      expect(run.status).toBe(1);
-      expect(run.stderr).toBe('elastimate: cannot write the output (ENOSPC)\n');
+      expect(run.status).toBe(3);
+      expect(run.stderr).toBe('elastimate: standard output: cannot be written: the disk is full (ENOSPC)\n');
     } finally {
       closeSync(full);
     }

@@ -14,32 +14,16 @@ import { copyFileSync, linkSync, lstatSync, mkdirSync, mkdtempSync, readdirSync,
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { caseFolders } from './fixtures/case-folders.js';
 import { ROOT, STACK_FRAME, ok, requireBuild, runCli, type CliRun } from '../cli/fixtures/run-cli.js';
 
 const VISIT = ['--sbp', '120', '--dbp', '80', '--hr', '60', '--edv', '120', '--esv', '50', '--pep', '90', '--et', '290', '--no-input'];
 
-let scratch: string;
+const here = caseFolders('outpaths');
 let dir: string;
 let subject: string;
 let original: Buffer;
-let n = 0;
-
-beforeAll(() => {
-  requireBuild();
-  scratch = mkdtempSync(join(tmpdir(), 'elastimate-outpaths-'));
-  original = readFileSync(join(ROOT, 'cases', 'cardio-oncology.subject.json'));
-});
-
-afterAll(() => {
-  rmSync(scratch, { recursive: true, force: true });
-});
-
-beforeEach(() => {
-  dir = join(scratch, `case-${++n}`);
-  mkdirSync(dir);
-  subject = join(dir, 's.json');
-  writeFileSync(subject, original, { mode: 0o600 });
-});
+beforeEach(() => ({ dir, subject, original } = here));
 
 /** Exit 2, one message naming the option's path and why; no stack trace. */
 function expectRefused(run: CliRun, name: string, why: RegExp): void {

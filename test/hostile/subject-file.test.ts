@@ -10,33 +10,17 @@ import { chmodSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSyn
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { caseFolders } from './fixtures/case-folders.js';
 import { ROOT, STACK_FRAME, ok, requireBuild, runCli } from '../cli/fixtures/run-cli.js';
 
 const ADD = ['--date', '2025-01-01', '--sbp', '120', '--dbp', '80', '--hr', '60', '--edv', '120', '--esv', '50', '--pep', '90', '--et', '290', '--no-input'];
 const WRITER = join(ROOT, 'test', 'records', 'fixtures', 'writer.mjs');
 
-let scratch: string;
+const here = caseFolders('subject');
 let dir: string;
 let subject: string;
 let original: Buffer;
-let n = 0;
-
-beforeAll(() => {
-  requireBuild();
-  scratch = mkdtempSync(join(tmpdir(), 'elastimate-subject-'));
-  original = readFileSync(join(ROOT, 'cases', 'cardio-oncology.subject.json'));
-});
-
-afterAll(() => {
-  rmSync(scratch, { recursive: true, force: true });
-});
-
-beforeEach(() => {
-  dir = join(scratch, `case-${++n}`);
-  mkdirSync(dir);
-  subject = join(dir, 's.json');
-  writeFileSync(subject, original, { mode: 0o600 });
-});
+beforeEach(() => ({ dir, subject, original } = here));
 
 describe('a subject file that must not be changed', () => {
   it('read-only (mode 0444) in a writable folder: record add is refused with exit 3, even for root; the file unchanged', async () => {
@@ -109,13 +93,19 @@ describe('the lock', () => {
   it('a writer that waits more than a second for a lock says so on stderr, then writes; one that does not wait says nothing', async () => {
     const quick = ok(await runCli(['record', 'add', subject, ...ADD]));
     expect(quick.stderr).not.toMatch(/waiting/);
-    // Another process's fresh lock, let go after 3 s (well within its 5 s staleness, well past the CLI's start-up).
+    // Another process's fresh lock, let go as soon as the waiting writer has said so (proper-lockfile would
+    // take it over as stale after 5 s, so a writer that never said so finishes without the line).
     mkdirSync(`${subject}.lock`);
-    const freed = setTimeout(() => rmSync(`${subject}.lock`, { recursive: true, force: true }), 3000);
-    const started = Date.now();
-    const run = ok(await runCli(['record', 'add', subject, ...ADD.map((a) => (a === '2025-01-01' ? '2025-02-01' : a))]));
-    clearTimeout(freed);
-    expect(Date.now() - started).toBeGreaterThan(2900);
+    let said = '';
+    const run = ok(
+      await runCli(['record', 'add', subject, ...ADD.map((a) => (a === '2025-01-01' ? '2025-02-01' : a))], {
+        onSpawn: (child) =>
+          child.stderr?.on('data', (d: Buffer) => {
+            said += d.toString();
+            if (said.includes('waiting')) rmSync(`${subject}.lock`, { recursive: true, force: true });
+          }),
+      }),
+    );
     expect(run.stderr).toMatch(/^elastimate: waiting for another elastimate process to finish changing .*s\.json/m);
     expect(existsSync(`${subject}.lock`)).toBe(false);
     expect(JSON.parse(readFileSync(subject, 'utf8')).visits.map((v: { date: string }) => v.date)).toContain('2025-02-01');
