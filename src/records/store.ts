@@ -234,6 +234,13 @@ function checkChangeable(path: string, target: string): void {
   if ((stat.mode & 0o200) === 0) {
     throw new FileFault(path, 'cannot be changed', `the file is read-only (mode ${(stat.mode & 0o777).toString(8).padStart(4, '0')}); make it writable (chmod u+w) to change it`);
   }
+  // Replacing by rename needs only the folder's permission: the file's own is asked for here.
+  try {
+    accessSync(target, fsConstants.W_OK);
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code ?? '';
+    throw new FileFault(path, 'cannot be changed', plainCause(code), code);
+  }
 }
 
 function lockProblem(path: string, err: unknown): InputError | FileFault {
