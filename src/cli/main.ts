@@ -8,6 +8,7 @@ import { InputError } from '../errors.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
+import { addSrOption } from './sr-option.js';
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
@@ -33,6 +34,7 @@ export function buildProgram(): Command {
     .command('assess')
     .description('assess one visit from flags, a visit file or prompts');
   addMeasurementOptions(assess);
+  addSrOption(assess);
   assess
     .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
