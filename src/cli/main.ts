@@ -106,7 +106,7 @@ export function commanderMessage(text: string): string {
     [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
     [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
     [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
-    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, report (see --help)`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, sr-cohort, report (see --help)`],
   ];
   for (const [pattern, format] of rules) {
     const m = pattern.exec(message);

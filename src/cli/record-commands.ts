@@ -98,6 +98,17 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     });
 
   program
+    .command('sr-cohort')
+    .description('a folder of DICOM SR files of echo studies as a cohort CSV for batch, one row per study (docs/sr-import.md)')
+    .argument('<folder>', 'folder of SR files (one or more per study)')
+    .option('--ids <file>', 'your CSV mapping SR file names to pseudonymous ids (columns file, subject); without it the subject column is left for you to fill')
+    .option('--out <file>', 'write to this CSV file (atomically) instead of standard output')
+    .action(async (folder: string, opts: Record<string, unknown>) => {
+      const { runSrCohort } = await import('./sr-cohort-command.js');
+      await runSrCohort(folder, opts);
+    });
+
+  program
     .command('batch')
     .description('results for every row of a cohort CSV, streamed (docs/batch.md)')
     .argument('<in.csv>', 'CSV with a header row; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')

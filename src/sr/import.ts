@@ -30,6 +30,9 @@ export interface SrImport {
   /** Values read that are not inputs of this version (e.g. right-heart measurements). */
   notUsedYet: { key: SrKey; label: string; value: string }[];
   studyDate: string | null;
+  /** Inputs the report does not carry, and inputs whose items were refused (labels). */
+  notFound: string[];
+  notUsed: string[];
   /** Lines for people: what was read, from where, what was not found or refused. */
   summary: string[];
 }
@@ -156,7 +159,8 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
   const missing = SR_TARGETS.filter((t) => !decided.some((c) => c.key === t.key) && !ex.refused.some((r) => r.key === t.key)).map((t) => t.label);
   if (missing.length > 0) summary.push(`not in the report: ${missing.join(', ')}.`);
   if (ex.privateItems > 0) summary.push(`${ex.privateItems} item${ex.privateItems === 1 ? '' : 's'} with vendor-private codes ignored.`);
-  return { raw, sources, notUsedYet, studyDate, summary };
+  const notUsed = [...new Set([...ex.refused.map((r) => targetOf(r.key).label), ...disagreements.filter((d) => !decided.some((c) => c.key === d.key)).map((d) => targetOf(d.key).label)])];
+  return { raw, sources, notUsedYet, studyDate, notFound: missing, notUsed, summary };
 }
 
 /** The found items of one input, for a prompt: "112 mL (LN 79996-5, file a.dcm)". */

@@ -64,12 +64,23 @@ const IDENTIFYING = [
   'StudyInstanceUID', 'SeriesInstanceUID', 'SOPInstanceUID', 'FrameOfReferenceUID', 'PatientAge', 'PatientSize', 'PatientWeight', 'PatientSex',
 ];
 
+const SR_ACCEPTED = 'a DICOM structured report (SR) of an echo study';
+
 function refuse(path: string, reason: string): InputError {
-  return new InputError({ field: 'sr', value: showValue(path), reason, accepted: 'a DICOM structured report (SR) of an echo study' });
+  return new InputError({ field: 'sr', value: showValue(path), reason, accepted: SR_ACCEPTED });
 }
 
 /** The file's bytes: a regular file no larger than MAX_SR_BYTES, else an InputError naming it. */
 export function readSrBytes(path: string): Uint8Array {
+  return readRegularFile(path, { field: 'sr', maxBytes: MAX_SR_BYTES, accepted: SR_ACCEPTED });
+}
+
+/**
+ * A whole regular file, refused (InputError naming the field and path) when it is missing, a
+ * folder, a device, pipe or socket, or larger than maxBytes. A FIFO is never waited on.
+ */
+export function readRegularFile(path: string, rule: { field: string; maxBytes: number; accepted: string }): Uint8Array {
+  const refuse = (p: string, reason: string) => new InputError({ field: rule.field, value: showValue(p), reason, accepted: rule.accepted });
   let fd: number;
   try {
     // O_NONBLOCK: opening a FIFO must not wait for a writer; it is refused below as not a regular file.
@@ -82,7 +93,7 @@ export function readSrBytes(path: string): Uint8Array {
     const stat = fstatSync(fd);
     if (stat.isDirectory()) throw refuse(path, 'is a folder');
     if (!stat.isFile()) throw refuse(path, 'not a regular file (a device, pipe or socket)');
-    if (stat.size > MAX_SR_BYTES) throw refuse(path, `larger than ${MAX_SR_BYTES / 1024 / 1024} MiB`);
+    if (stat.size > rule.maxBytes) throw refuse(path, `larger than ${rule.maxBytes / 1024 / 1024} MiB`);
     const bytes = new Uint8Array(stat.size);
     let read = 0;
     while (read < bytes.length) {
