@@ -52,10 +52,19 @@ export async function gatherSr(opts: Record<string, unknown>): Promise<SrImport 
 /** The SR's values under the given ones (flags and visit file win), and the sources of what stays from the SR. */
 export function underGiven(sr: SrImport | null, given: RawInputs): { raw: RawInputs; sources: Record<string, SrSource> } {
   if (!sr) return { raw: given, sources: {} };
-  const raw = { ...sr.raw, ...given } as RawInputs;
+  const fromSr: Record<string, number | string> = { ...sr.raw };
+  // Doppler stroke volume needs both LVOT diameter and VTI: half of the pair from the report alone is
+  // set aside (and said), rather than refusing the visit for what the report happens to lack.
+  for (const [have, lacking, flag] of [['lvotDiameter', 'lvotVti', 'lvot-vti'], ['lvotVti', 'lvotDiameter', 'lvot-diameter']] as const) {
+    if (fromSr[have] !== undefined && fromSr[lacking] === undefined && given[lacking] === undefined && given[have] === undefined) {
+      delete fromSr[have];
+      info(`${have === 'lvotDiameter' ? 'LVOT diameter' : 'LVOT VTI'} from the report set aside: Doppler stroke volume needs the ${lacking === 'lvotVti' ? 'VTI' : 'diameter'} too (give --${flag} to use both).`);
+    }
+  }
+  const raw = { ...fromSr, ...given } as RawInputs;
   if (given.errors) raw.errors = given.errors;
   const sources: Record<string, SrSource> = {};
-  for (const [key, s] of Object.entries(sr.sources)) if ((given as Record<string, unknown>)[key] === undefined) sources[key] = s;
+  for (const [key, s] of Object.entries(sr.sources)) if (fromSr[key] !== undefined && (given as Record<string, unknown>)[key] === undefined) sources[key] = s;
   return { raw, sources };
 }
 
