@@ -70,8 +70,9 @@ describe('TID 5200 (post-coordinated codes with modifiers)', () => {
 
   it('takes the TR peak velocity only with the tricuspid site and regurgitant flow direction', async () => {
     const tr = num(LN('11726-7', 'Peak Systolic Velocity'), 280, 'cm/s', [modifier(MOD.flow, VAL.regurgitant)]);
+    const forward = num(LN('11726-7', 'Peak Systolic Velocity'), 60, 'cm/s'); // tricuspid inflow: no regurgitant flow direction
     const mitral = num(LN('11726-7', 'Peak Systolic Velocity'), 510, 'cm/s', [modifier(MOD.flow, VAL.regurgitant)]);
-    const r = await importOne([section(VAL.lv, [num(LN('18026-5', 'LVEDV'), 120, 'mL')]), section(VAL.tricuspid, [tr]), section(VAL.mitral, [mitral])]);
+    const r = await importOne([section(VAL.lv, [num(LN('18026-5', 'LVEDV'), 120, 'mL')]), section(VAL.tricuspid, [tr, forward]), section(VAL.mitral, [mitral])]);
     const value = 'trVelocity' in r.raw ? r.raw.trVelocity : r.notUsedYet.find((n) => n.key === 'trVelocity')?.value;
     expect(String(value)).toMatch(/^2\.8( m\/s)?$/); // 280 cm/s = 2.8 m/s
   });
@@ -175,12 +176,13 @@ describe('units, private codes and content that is never read', () => {
     expect(s).toMatch(/not used: LN 80001-1 .*unit "mm" is not a volume unit/);
   });
 
-  it('ignores vendor-private codes, even for a concept it knows', async () => {
+  it('ignores vendor-private codes, and everything under a private container, even a concept it knows', async () => {
     const r = await importOne([
       container(DCM('125301', 'P'), [num(['99ACME', 'EDV1', 'Vendor EDV'], 200, 'mL'), num(LN('79996-5', 'EDV'), 118, 'mL'), modifier(['99ACME', 'X', 'x'], VAL.lv)]),
+      container(['99ACME', 'SEC', 'Vendor section'], [num(LN('79996-5', 'EDV'), 190, 'mL')]),
     ]);
     expect(r.raw.edv).toBe(118);
-    expect(r.summary.join('\n')).toMatch(/2 items with vendor-private codes ignored/);
+    expect(r.summary.join('\n')).toMatch(/3 items with vendor-private codes ignored/);
   });
 
   it('keeps no text item, name or identifier: the document holds codes and numbers only', () => {
