@@ -9,6 +9,7 @@ import { RawInputsSchema, type RawInputs } from '../assessment/inputs.js';
 import { describeFound, describeSource, importStudy, type SrImport, type SrSource } from '../sr/import.js';
 import { readSrFile } from '../sr/read-dicom.js';
 import type { Disagreement } from '../sr/extract.js';
+import { wrap } from '../render/terminal.js';
 import { canPrompt } from './assess-command.js';
 import { info } from './messages.js';
 
@@ -45,7 +46,12 @@ export async function gatherSr(opts: Record<string, unknown>): Promise<SrImport 
   const docs = [];
   for (const f of files) docs.push(await readSrFile(f));
   const result = await importStudy(docs, { inputKeys: inputKeys(), inputUnits: inputUnits(), ...(canPrompt(opts) ? { decide: decideAtTerminal } : {}) });
-  for (const line of result.summary) info(line);
+  // Wrapped to the screen (stderr's width, else 100 columns), continuation lines indented.
+  const width = Math.max(40, (process.stderr.columns ?? 100) - 'elastimate: '.length);
+  for (const line of result.summary) {
+    const indent = /^ */.exec(line)![0];
+    wrap(line.trim(), width - indent.length).forEach((part, i) => info(`${indent}${i > 0 ? '    ' : ''}${part}`));
+  }
   return result;
 }
 
