@@ -142,6 +142,11 @@ describe('record add --sr', () => {
     expectNoIdentity(stored, run.stdout, run.stderr);
     const shown = ok(await runCli(['record', 'show', file, '--json']));
     expectNoIdentity(shown.stdout);
+    // An edited input loses its source; the others keep theirs.
+    ok(await runCli(['record', 'edit', file, '1', '--edv', '125', '--yes']));
+    const edited = JSON.parse(readFileSync(file, 'utf8')) as typeof data;
+    expect(edited.visits[0]!.sources.edv).toBeUndefined();
+    expect(edited.visits[0]!.sources.esv?.code).toBe('LN 18148-7');
   });
 
   it('writes nothing when the SR is refused', async () => {
@@ -173,6 +178,17 @@ describe('sr-cohort', () => {
     expect(lines[2]).toMatch(/^CO-301,2024-01-05,119,46,61,,2\.1,,95,/); // EDV 118 and 120 (1.7 % apart): their mean
     expectNoIdentity(csv, run.stdout, run.stderr);
     // batch reads it: rows without cuff pressures, PEP or ET get their reason, none is misread.
+    // A formula-looking id in the user's map, or a file that is not an SR: one message, nothing written.
+    const badIds = join(dir, 'bad-ids.csv');
+    writeFileSync(badIds, 'file,subject\na1.dcm,=HYPERLINK("x")\n');
+    const out2 = join(dir, 'cohort2.csv');
+    const refused = await runCli(['sr-cohort', folder, '--ids', badIds, '--out', out2]);
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toMatch(/^elastimate: ids row 2: got .*accepted: a pseudonymous id/);
+    writeFileSync(join(folder, 'readme.txt'), 'not a report');
+    const withText = await runCli(['sr-cohort', folder, '--out', out2]);
+    expectRefusal(withText, join(folder, 'readme.txt'), /not a DICOM file/);
+    expect(existsSync(out2)).toBe(false);
     const batch = await runCli(['batch', out]);
     expect(batch.code).toBe(0);
     expect(batch.stdout.split('\r\n')[0]).toMatch(/^subject,visit_date,edv/);
