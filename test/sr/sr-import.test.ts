@@ -232,6 +232,16 @@ describe('bad files: one message naming the file', () => {
     execFileSync('mkfifo', [p]);
     await expectRefused(p, /not a regular file/);
   });
+  it('a report tree nested deeper than any template (refused, not a stack overflow)', () => {
+    let tree = container(DCM('125301', 'P'), [num(LN('79996-5', 'EDV'), 118, 'mL')]);
+    for (let i = 0; i < 80; i++) tree = container(DCM('121070', 'Findings'), [tree]);
+    expect(() => load([tree])).toThrow(/nested too deeply/);
+  });
+  it('files of two different studies in one set', async () => {
+    const a = parseSr('a.dcm', buildSr({ studyDate: '20240105', studyUid: '1.2.826.0.1.3680043.99.1', content: tid5300({ edv: 118, esv: 46 }) }), dcmjs);
+    const b = parseSr('b.dcm', buildSr({ studyDate: '20240312', studyUid: '1.2.826.0.1.3680043.99.2', content: tid5300({ edv: 120, esv: 47 }) }), dcmjs);
+    await expect(importStudy([a, b], options)).rejects.toThrow(/sr: got "b.dcm"; belongs to a different study than "a.dcm" \(study dates 2024-01-05 and 2024-03-12\)/);
+  });
   it('an SR with no echo measurements', async () => {
     const doc = load([container(DCM('121070', 'Findings'), [text(DCM('121106', 'Comment'), 'normal study')])]);
     await expect(importStudy([doc], options)).rejects.toThrow(/no echo measurements found/);
