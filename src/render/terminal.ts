@@ -39,7 +39,16 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   out.push(s.dim(`methods ${a.methodsVersion}; research use only, not a diagnosis`));
 
   section('Inputs as used');
-  for (const row of inputRows(a, options.inputSources)) out.push(`  ${pad(row.label, LABEL_WIDTH)}${row.value}${row.source ? s.dim('  ' + row.source) : ''}`);
+  for (const row of inputRows(a, options.inputSources)) {
+    const head = `  ${pad(row.label, LABEL_WIDTH)}${row.value}`;
+    // A long source (an imported value's provenance) continues under the value, wrapped to 100 columns.
+    if (row.source.length + head.length + 2 <= 100) out.push(`${head}${row.source ? s.dim('  ' + row.source) : ''}`);
+    else {
+      const [first, ...rest] = wrap(row.source, 100 - head.length - 2);
+      out.push(`${head}${s.dim('  ' + first)}`);
+      for (const more of rest.length ? wrap(rest.join(' '), 100 - LABEL_WIDTH - 6) : []) out.push(s.dim(`${' '.repeat(LABEL_WIDTH + 6)}${more}`));
+    }
+  }
 
   section('Pressures');
   line('End-systolic pressure (Pes)', r.pes);

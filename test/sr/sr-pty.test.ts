@@ -40,7 +40,7 @@ describe.skipIf(unavailable !== null)(`assess --sr at a terminal${unavailable ? 
     ]);
     expect(run.reason, run.screen.slice(-2000)).toBe('');
     expect(run.exitCode).toBe(0);
-    expect(run.screen).toMatch(/LV end-diastolic volume\s+130 mL\s+from DICOM SR LN 79996-5 .*chosen at the prompt/);
+    expect(run.screen.replace(/\r?\n {40,}/g, ' ')).toMatch(/LV end-diastolic volume\s+130 mL\s+from DICOM SR LN 79996-5 .*chosen at the prompt/);
     expect(run.screen).not.toMatch(STACK_FRAME);
     for (const needle of IDENTITY_NEEDLES) expect(run.screen).not.toContain(needle);
   }, 60_000);
