@@ -11,7 +11,7 @@ import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import {
   CONCEPTS, FINDING_SITE, FLOW_DIRECTION, IMAGE_MODE, MEASUREMENT_METHOD, METHOD_VALUES, PATIENT_CHARACTERISTICS,
-  REGURGITANT_FLOW, SELECTION_STATUS, SELECTION_VALUES, SEX_VALUES, SITES, SUBJECT_SEX, type Code,
+  REGURGITANT_FLOW, SELECTION_STATUS, SELECTION_VALUES, SEX_VALUES, SITES, SRT_EQUIVALENTS, SUBJECT_SEX, type Code,
 } from '../../src/sr/codes.js';
 
 const LOOKUP = `
@@ -77,6 +77,15 @@ describe('SR code table against pydicom\'s DICOM code dictionary (Debian python3
     expect(entry.meanings.length, `${key} not in the dictionary`).toBeGreaterThan(0);
     const known = entry.meanings.map(plain);
     expect(known.includes(plain(c.meaning)) || known.includes(MEANING_ALIASES[key] ?? '\u0000'), `${key}: table says "${c.meaning}", dictionary ${JSON.stringify(entry.meanings)}`).toBe(true);
+  });
+
+  it('every SNOMED CT code of the table has its SNOMED-RT equivalent as PS3.16 maps it (pydicom.sr._snomed_dict)', () => {
+    const run = spawnSync('/usr/bin/python3', ['-c', 'import json; from pydicom.sr._snomed_dict import mapping; print(json.dumps(mapping["SCT"]))'], { encoding: 'utf8', timeout: 60_000 });
+    expect(run.status, run.stderr).toBe(0);
+    const mapping = JSON.parse(run.stdout) as Record<string, string>;
+    const sct = [...new Set(all.filter((c) => c.scheme === 'SCT').map((c) => c.code))];
+    for (const code of sct) expect(SRT_EQUIVALENTS[code], `SCT ${code}`).toBe(mapping[code]);
+    expect(Object.keys(SRT_EQUIVALENTS).sort()).toEqual(sct.sort());
   });
 
   it.each(CONCEPTS.filter((r) => /CID \d+/.test(r.list)).map((r) => [`${r.concept.scheme} ${r.concept.code} (${r.list})`, r] as const))('%s is in the context group it cites', (_name, row) => {

@@ -62,6 +62,15 @@ describe('TID 5200 (post-coordinated codes with modifiers)', () => {
     expect(r.studyDate).toBe('2024-01-05');
   });
 
+  it('reads legacy SNOMED-RT codes (scheme SRT) as their SNOMED CT concepts (PS3.16 mapping)', async () => {
+    const srt = (code: string, meaning: string) => ['SRT', code, meaning] as const;
+    const r = await importOne([
+      container(LV, [modifier(srt('G-C0E3', 'Finding Site'), srt('T-32650', 'Left Ventricle Outflow Tract')), num(srt('G-038F', 'Cardiovascular Orifice Diameter'), 2.2, 'cm'), num(LN('20354-7', 'Velocity Time Integral'), 19, 'cm')]),
+      container(LV, [modifier(srt('G-C0E3', 'Finding Site'), srt('T-32550', 'Right Ventricle Outflow Tract')), num(LN('20354-7', 'Velocity Time Integral'), 14, 'cm')]),
+    ]);
+    expect([r.raw.lvotDiameter, r.raw.lvotVti]).toEqual([2.2, 19]);
+  });
+
   it('tells the LVOT VTI from the RVOT VTI by the finding site: an RVOT VTI alone is not an LVOT VTI', async () => {
     const r = await importOne([section(VAL.lv, [num(LN('18026-5', 'LVEDV'), 120, 'mL'), num(LN('18148-7', 'LVESV'), 50, 'mL')]), section(VAL.rvot, [num(LN('20354-7', 'Velocity Time Integral'), 15, 'cm')])]);
     expect(r.raw.lvotVti).toBeUndefined();
