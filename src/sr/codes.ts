@@ -25,7 +25,30 @@ export interface Code {
 }
 
 /** The code schemes the importer reads; everything else counts as private and is ignored. */
-export const READ_SCHEMES: ReadonlySet<string> = new Set(['LN', 'SCT', 'DCM']);
+export const READ_SCHEMES: ReadonlySet<string> = new Set(['LN', 'SCT', 'SRT', 'DCM']);
+
+/**
+ * The SNOMED-RT codes (scheme SRT) that reports written before DICOM moved to SNOMED CT use for
+ * the SNOMED CT concepts of this table, from PS3.16's SNOMED CT to SNOMED-RT mapping (checked
+ * against pydicom's copy of it, pydicom.sr._snomed_dict). An SRT code matches its SCT concept.
+ */
+export const SRT_EQUIVALENTS: Readonly<Record<string, string>> = {
+  '363698007': 'G-C0E3', // Finding Site
+  '370129005': 'G-C036', // Measurement Method
+  '399264008': 'G-0373', // Image Mode
+  '260674002': 'G-C048', // Direction of flow
+  '13418002': 'T-32650', // Left Ventricle Outflow Tract
+  '44627009': 'T-32550', // Right Ventricle Outflow Tract
+  '87878005': 'T-32600', // Left Ventricle
+  '34202007': 'T-35400', // Aortic Valve
+  '91134007': 'T-35300', // Mitral Valve
+  '46030003': 'T-35100', // Tricuspid Valve
+  '397417004': 'G-0367', // Regurgitant Flow
+  '426865009': 'P0-02242', // 3D mode
+  '399027007': 'G-038F', // Cardiovascular Orifice Diameter
+  '90096001': 'F-32120', // Stroke Volume
+  '399140004': 'G-037B', // Ratio of MV Peak Velocity to LV Peak Tissue Velocity E-Wave
+};
 
 /** Keys of the values an SR can supply: the visit inputs, plus the right-heart inputs. */
 export type SrKey =
@@ -229,8 +252,12 @@ export const UCUM_UNITS: ReadonlyMap<string, { dimension: Dimension; math: strin
   ['[lb_av]', { dimension: 'mass', math: 'lbm' }],
 ]);
 
+/** The same concept: same scheme and code, or a SNOMED CT code and its SNOMED-RT equivalent. */
 export function sameCode(a: { scheme: string; code: string }, b: { scheme: string; code: string }): boolean {
-  return a.scheme === b.scheme && a.code === b.code;
+  if (a.scheme === b.scheme) return a.code === b.code;
+  if (a.scheme === 'SCT' && b.scheme === 'SRT') return SRT_EQUIVALENTS[a.code] === b.code;
+  if (a.scheme === 'SRT' && b.scheme === 'SCT') return SRT_EQUIVALENTS[b.code] === a.code;
+  return false;
 }
 
 /** "LN 79996-5" */
