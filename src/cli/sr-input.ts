@@ -4,6 +4,7 @@
  * one object), and ask at a terminal when repeated measurements disagree.
  * dcmjs loads here, only when an SR is given.
  */
+import { resolve } from 'node:path';
 import { NUMERIC_FIELDS } from '../assessment/fields.js';
 import { RawInputsSchema, type RawInputs } from '../assessment/inputs.js';
 import { describeFound, describeSource, importStudy, type SrImport, type SrSource } from '../sr/import.js';
@@ -15,7 +16,10 @@ import { info } from './messages.js';
 
 export function srFiles(opts: Record<string, unknown>): string[] {
   const v = opts.sr;
-  return Array.isArray(v) ? v.map(String) : typeof v === 'string' ? [v] : [];
+  const given = Array.isArray(v) ? v.map(String) : typeof v === 'string' ? [v] : [];
+  // The same file named twice would count its measurements twice as repeats: read it once.
+  const seen = new Set<string>();
+  return given.filter((f) => !seen.has(resolve(f)) && seen.add(resolve(f)));
 }
 
 /** The keys a visit's raw inputs may have (the input schema), for the importer. */
