@@ -48,7 +48,7 @@ export interface ImportOptions {
   decide?: Decide;
 }
 
-/** "SR 1" style file naming is not used: the user's own path names the file in every message. */
+/** Files of two studies in one set: refused, naming both files by the paths the user gave. */
 function refuseStudies(a: SrDocument, b: SrDocument): InputError {
   return new InputError({
     field: 'sr',
