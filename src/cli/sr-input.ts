@@ -7,7 +7,7 @@
 import { resolve } from 'node:path';
 import { NUMERIC_FIELDS } from '../assessment/fields.js';
 import { RawInputsSchema, type RawInputs } from '../assessment/inputs.js';
-import { describeFound, describeSource, importStudy, type SrImport, type SrSource } from '../sr/import.js';
+import { SPREAD_WORDS, describeFound, describeSource, importStudy, valueText, type SrImport, type SrSource } from '../sr/import.js';
 import { readSrFile } from '../sr/read-dicom.js';
 import type { Disagreement } from '../sr/extract.js';
 import { wrap } from '../render/terminal.js';
@@ -35,10 +35,10 @@ async function decideAtTerminal(d: Disagreement, label: string): Promise<number 
   const { select } = await import('@inquirer/prompts');
   const mean = d.found.reduce((a, f) => a + f.value, 0) / d.found.length;
   const choices: { name: string; value: number | null }[] = d.found.map((f) => ({ name: describeFound(f), value: f.value }));
-  choices.push({ name: `their mean, ${Number(mean.toPrecision(6))}`, value: Number(mean.toPrecision(12)) });
+  choices.push({ name: `their mean, ${valueText(d.key, mean)}`, value: Number(mean.toPrecision(12)) });
   choices.push({ name: 'none: I will give the value myself', value: null });
   return select<number | null>({
-    message: `${label}: the report's repeated measurements differ by ${Math.round(d.spread * 100)} % (more than 10 %). Which one is right?`,
+    message: `${label}: the report's repeated measurements differ by ${Math.round(d.spread * 100)} % (more than ${SPREAD_WORDS}). Which one is right?`,
     choices,
   });
 }

@@ -7,7 +7,7 @@
  */
 import { InputError, showValue } from '../errors.js';
 import { METHOD_WORDS, SR_TARGETS, codeText, targetOf, type SrKey } from './codes.js';
-import { choose, extract, type Disagreement, type Extracted, type Found } from './extract.js';
+import { SPREAD_LIMIT, choose, extract, type Disagreement, type Extracted, type Found } from './extract.js';
 import type { SrDocument } from './read-dicom.js';
 
 /** Where an input came from, as stored in a subject file and shown in the inputs-as-used view. */
@@ -77,6 +77,15 @@ function formatValue(v: number): string {
   return String(Number(v.toPrecision(6)));
 }
 
+/** A value of one input in words: "112 mL", "68 bpm", "11". */
+export function valueText(key: SrKey, value: number): string {
+  const unit = unitWord(targetOf(key).unit);
+  return `${formatValue(value)}${unit ? ' ' + unit : ''}`;
+}
+
+/** The spread limit of repeated measurements in words ("10 %"). */
+export const SPREAD_WORDS = `${Math.round(SPREAD_LIMIT * 100)} %`;
+
 /** The source line of one input: code, meaning, method, study date, how chosen. Shown and stored alike. */
 export function describeSource(s: SrSource): string {
   return `DICOM SR ${s.code} ${s.meaning}${s.method ? `, ${s.method}` : ''}${s.studyDate ? `, study ${s.studyDate}` : ''} (${s.how})`;
@@ -111,12 +120,12 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
   const decided = [...chosen];
   for (const d of disagreements) {
     const t = targetOf(d.key);
-    const values = d.found.map((f) => `${formatValue(f.value)} ${unitWord(t.unit)}`).join(', ');
+    const values = d.found.map((f) => valueText(d.key, f.value)).join(', ');
     const value = options.decide ? await options.decide(d, t.label) : null;
     if (value !== null) {
       decided.push({ key: d.key, value, found: d.found, how: 'chosen at the prompt among repeats', method: d.found[0]!.method });
     } else {
-      refusedLines.push(`not used: ${t.label}: repeated measurements disagree by ${Math.round(d.spread * 100)} % (${values}); more than the 10 % accepted`);
+      refusedLines.push(`not used: ${t.label}: repeated measurements disagree by ${Math.round(d.spread * 100)} % (${values}); more than the ${SPREAD_WORDS} accepted`);
     }
   }
 
@@ -129,7 +138,7 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
     if (!c) continue;
     const row = c.found[0]!.row;
     const shownUnit = unitWord(t.unit);
-    const text = `${formatValue(c.value)}${shownUnit ? ' ' + shownUnit : ''}`;
+    const text = valueText(t.key, c.value);
     const source: SrSource = {
       from: 'DICOM SR',
       code: codeText(row.concept),
@@ -165,6 +174,5 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
 
 /** The found items of one input, for a prompt: "112 mL (LN 79996-5, file a.dcm)". */
 export function describeFound(f: Found): string {
-  const t = targetOf(f.key);
-  return `${formatValue(f.value)} ${unitWord(t.unit)} (${f.shown} as given, ${codeText(f.row.concept)}${f.preferred ? ', marked preferred' : ''})`;
+  return `${valueText(f.key, f.value)} (${f.shown} as given, ${codeText(f.row.concept)}${f.preferred ? ', marked preferred' : ''})`;
 }
