@@ -18,7 +18,7 @@ import { importStudy } from '../sr/import.js';
 import { readRegularFile, readSrFile, type SrDocument } from '../sr/read-dicom.js';
 import { checkOutputPath, writeTextAtomically } from './output-files.js';
 import { info } from './messages.js';
-import { inputKeys, inputUnits } from './sr-input.js';
+import { inputKeys, inputUnits, readingKeys } from './sr-input.js';
 
 /** More files than any study folder holds; a larger folder is refused before anything is read. */
 const MAX_FILES = 20_000;
@@ -64,8 +64,10 @@ function readIdMap(path: string): Map<string, string> {
   return map;
 }
 
-function cell(v: number | string | undefined): string {
+/** A cell as batch reads it: several readings separated by semicolons (docs/batch.md). */
+function cell(v: number | string | number[] | undefined): string {
   if (v === undefined) return '';
+  if (Array.isArray(v)) return v.map((x) => cell(x)).join(';');
   return typeof v === 'number' ? String(Number(v.toPrecision(6))) : v;
 }
 
@@ -92,7 +94,7 @@ export async function runSrCohort(folder: string, opts: Record<string, unknown>)
   let identifying = 0;
   for (const group of studies.values()) {
     identifying += group.reduce((n, d) => n + d.identifying, 0);
-    const imported = await importStudy(group, { inputKeys: keys, inputUnits: units });
+    const imported = await importStudy(group, { inputKeys: keys, inputUnits: units, readingKeys: readingKeys() });
     const mapped = [...new Set(group.map((d) => ids.get(basename(d.path))).filter((x): x is string => x !== undefined))];
     if (mapped.length > 1) {
       throw new InputError({ field: 'ids', value: showValue(mapped.join(', ').slice(0, 80)), reason: `the files of one study (${group.map((d) => basename(d.path)).join(', ').slice(0, 120)}) map to different ids`, accepted: 'one pseudonymous id per study' });

@@ -31,6 +31,11 @@ export function inputUnits(): ReadonlyMap<string, string> {
   return new Map(NUMERIC_FIELDS.map((f) => [f.key, f.unit]));
 }
 
+/** Inputs that take several readings. */
+export function readingKeys(): ReadonlySet<string> {
+  return new Set(NUMERIC_FIELDS.filter((f) => f.multiple).map((f) => f.key));
+}
+
 async function decideAtTerminal(d: Disagreement, label: string): Promise<number | null> {
   const { select } = await import('@inquirer/prompts');
   const mean = d.found.reduce((a, f) => a + f.value, 0) / d.found.length;
@@ -49,7 +54,7 @@ export async function gatherSr(opts: Record<string, unknown>): Promise<SrImport 
   if (files.length === 0) return null;
   const docs = [];
   for (const f of files) docs.push(await readSrFile(f));
-  const result = await importStudy(docs, { inputKeys: inputKeys(), inputUnits: inputUnits(), ...(canPrompt(opts) ? { decide: decideAtTerminal } : {}) });
+  const result = await importStudy(docs, { inputKeys: inputKeys(), inputUnits: inputUnits(), readingKeys: readingKeys(), ...(canPrompt(opts) ? { decide: decideAtTerminal } : {}) });
   // Wrapped to the screen (stderr's width, else 100 columns), continuation lines indented.
   const width = Math.max(40, (process.stderr.columns ?? 100) - 'elastimate: '.length);
   for (const line of result.summary) {
@@ -62,7 +67,7 @@ export async function gatherSr(opts: Record<string, unknown>): Promise<SrImport 
 /** The SR's values under the given ones (flags and visit file win), and the sources of what stays from the SR. */
 export function underGiven(sr: SrImport | null, given: RawInputs): { raw: RawInputs; sources: Record<string, SrSource> } {
   if (!sr) return { raw: given, sources: {} };
-  const fromSr: Record<string, number | string> = { ...sr.raw };
+  const fromSr: SrImport['raw'] = { ...sr.raw };
   // Doppler stroke volume needs both LVOT diameter and VTI: half of the pair from the report alone is
   // set aside (and said), rather than refusing the visit for what the report happens to lack.
   for (const [have, lacking, flag] of [['lvotDiameter', 'lvotVti', 'lvot-vti'], ['lvotVti', 'lvotDiameter', 'lvot-diameter']] as const) {

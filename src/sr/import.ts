@@ -25,7 +25,7 @@ export interface SrSource {
 
 export interface SrImport {
   /** Values for the visit inputs (only keys the input schema knows), in each input's default unit. */
-  raw: Record<string, number | string>;
+  raw: Record<string, number | string | number[]>;
   sources: Record<string, SrSource>;
   /** Values read that are not inputs of this version (e.g. right-heart measurements). */
   notUsedYet: { key: SrKey; label: string; value: string }[];
@@ -45,6 +45,8 @@ export interface ImportOptions {
   inputKeys: ReadonlySet<string>;
   /** Default unit of each numeric input (fields registry), to decide whether a bare number is right. */
   inputUnits: ReadonlyMap<string, string>;
+  /** Inputs that take several readings (cuff pressures): repeats are passed as readings, not their mean. */
+  readingKeys?: ReadonlySet<string>;
   decide?: Decide;
 }
 
@@ -129,7 +131,7 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
     }
   }
 
-  const raw: Record<string, number | string> = {};
+  const raw: SrImport['raw'] = {};
   const sources: Record<string, SrSource> = {};
   const notUsedYet: SrImport['notUsedYet'] = [];
   const readLines: string[] = [];
@@ -152,7 +154,10 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
       continue;
     }
     const fieldUnit = options.inputUnits.get(t.key);
-    raw[t.key] = fieldUnit === undefined || fieldUnit === shownUnit ? c.value : `${c.value} ${t.unit}`;
+    const bare = fieldUnit === undefined || fieldUnit === shownUnit;
+    // Repeated cuff readings stay readings (the tool averages them, and its error model counts them).
+    const readings = options.readingKeys?.has(t.key) && c.how.startsWith('mean of') && bare;
+    raw[t.key] = readings ? c.found.map((f) => f.value) : bare ? c.value : `${c.value} ${t.unit}`;
     sources[t.key] = source;
     readLines.push(`  ${t.label}: ${text} from ${describeSource(source)}`);
   }

@@ -87,8 +87,9 @@ describe('assess --sr', () => {
       '--lvot-diameter', '2.1', '--lvot-vti', '21', '--pep', '95', '--et', '285', '--height', '174', '--weight', '88', '--age', '58',
       '--sex', 'male', '--lvids', '3.2', '--pwts', '1.3', '--e-over-e-prime', '11',
     ]));
-    const a = JSON.parse(fromSr.stdout) as { results: unknown; flags: unknown; inputSources: Record<string, string> };
-    const b = JSON.parse(typed.stdout) as { results: unknown; flags: unknown };
+    const a = JSON.parse(fromSr.stdout) as { inputs: unknown; results: unknown; flags: unknown; inputSources: Record<string, string> };
+    const b = JSON.parse(typed.stdout) as { inputs: unknown; results: unknown; flags: unknown };
+    expect(a.inputs).toEqual(b.inputs); // the cuff repeats arrive as three readings each, as typed
     expect(a.results).toEqual(b.results);
     expect(a.flags).toEqual(b.flags);
     expect(a.inputSources.edv).toBe('from DICOM SR LN 18026-5 Left Ventricular End Diastolic Volume, biplane method of disks, study 2024-03-11 (one measurement)');
@@ -163,7 +164,11 @@ describe('sr-cohort', () => {
     const folder = join(dir, 'cohort');
     mkdirSync(folder);
     // Study A in two files (volumes; Doppler and timing), study B in one.
-    writeSr(join(folder, 'a1.dcm'), { studyDate: '20240105', studyUid: '1.2.826.0.1.3680043.99.424242.10', instance: 1, content: tid5300({ edv: 118, esv: 46, ef: 61 }) });
+    const cuff = container(DCM('121118', 'Patient Characteristics'), [
+      num(LN('8480-6', 'Systolic blood pressure'), 152, 'mm[Hg]'), num(LN('8480-6', 'Systolic blood pressure'), 148, 'mm[Hg]'),
+      num(LN('8462-4', 'Diastolic blood pressure'), 94, 'mm[Hg]'), num(LN('8462-4', 'Diastolic blood pressure'), 92, 'mm[Hg]'),
+    ]);
+    writeSr(join(folder, 'a1.dcm'), { studyDate: '20240105', studyUid: '1.2.826.0.1.3680043.99.424242.10', instance: 1, content: [...tid5300({ edv: 118, esv: 46, ef: 61 }), cuff] });
     writeSr(join(folder, 'a2.dcm'), { studyDate: '20240105', studyUid: '1.2.826.0.1.3680043.99.424242.10', instance: 2, content: tid5300({ edv: 120, esv: 46, lvotDiameterMm: 21, pepMs: 95 }) });
     writeSr(join(folder, 'b1.dcm'), { studyDate: '20231120', studyUid: '1.2.826.0.1.3680043.99.424242.11', instance: 3, content: tid5300({ edv: 150, esv: 80 }) });
     const ids = join(dir, 'ids.csv');
@@ -176,6 +181,7 @@ describe('sr-cohort', () => {
     expect(lines).toHaveLength(3);
     expect(lines[1]).toMatch(/^CO-302,2023-11-20,150,80,/);
     expect(lines[2]).toMatch(/^CO-301,2024-01-05,119,46,61,,2\.1,,95,/); // EDV 118 and 120 (1.7 % apart): their mean
+    expect(lines[2]).toMatch(/,152;148,94;92,/); // cuff repeats as readings, the way batch reads them
     expectNoIdentity(csv, run.stdout, run.stderr);
     // batch reads it: rows without cuff pressures, PEP or ET get their reason, none is misread.
     // A formula-looking id in the user's map, or a file that is not an SR: one message, nothing written.
