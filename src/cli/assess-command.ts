@@ -46,7 +46,9 @@ export async function completeRaw(raw: RawInputs, opts: Record<string, unknown>)
 
 export async function runAssess(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
   const diagrams = opts.svg !== undefined || opts.sketch === true ? await import('./diagram-options.js') : null;
-  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputFile ? [inputFile] : []) : null;
+  // Files this run reads (a visit file, SR files): an output may never be one of them.
+  const inputPaths = [...(inputFile ? [inputFile] : []), ...(Array.isArray(opts.sr) ? opts.sr.map(String) : [])];
+  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputPaths) : null;
   const wantsUncertainty = opts.uncertainty === true || opts.draws !== undefined || opts.seed !== undefined;
   const uncertainty = wantsUncertainty ? await import('../assessment/uncertainty.js') : null;
   const draws = uncertainty && opts.draws !== undefined ? uncertainty.parseDraws(opts.draws) : undefined;
@@ -58,7 +60,7 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath);
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputPaths);
   if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, inputSources);
   else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);

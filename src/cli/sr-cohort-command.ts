@@ -16,7 +16,7 @@ import { csvText } from '../render/csv.js';
 import { SR_TARGETS } from '../sr/codes.js';
 import { importStudy } from '../sr/import.js';
 import { readRegularFile, readSrFile, type SrDocument } from '../sr/read-dicom.js';
-import { checkOutputPath, writeTextAtomically } from './output-files.js';
+import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 import { info } from './messages.js';
 import { inputKeys, inputUnits, readingKeys } from './sr-input.js';
 
@@ -72,9 +72,11 @@ function cell(v: number | string | number[] | undefined): string {
 }
 
 export async function runSrCohort(folder: string, opts: Record<string, unknown>): Promise<void> {
-  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, { option: '--out', extensions: ['.csv'] }) : null;
-  const ids = opts.ids !== undefined ? readIdMap(String(opts.ids)) : new Map<string, string>();
   const names = listFolder(folder);
+  // Never written over a file this run reads: the reports and the id map.
+  const out = { option: 'out', extensions: ['.csv'], inputs: [...names.map((n) => join(folder, n)), ...(opts.ids !== undefined ? [String(opts.ids)] : [])] };
+  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, out) : null;
+  const ids = opts.ids !== undefined ? readIdMap(String(opts.ids)) : new Map<string, string>();
   const docs: SrDocument[] = [];
   for (const name of names) docs.push(await readSrFile(join(folder, name)));
 
@@ -113,7 +115,7 @@ export async function runSrCohort(folder: string, opts: Record<string, unknown>)
   }
   rows.sort((a, b) => (a.date === b.date ? (a.first < b.first ? -1 : 1) : a.date < b.date ? -1 : 1));
   const text = csvText([header, ...rows.map((r) => r.cells)]);
-  if (outPath) await writeTextAtomically(outPath, text, '--out');
+  if (outPath) writeFileSafely(outPath, text, out);
   else process.stdout.write(text);
   info(`${rows.length} ${rows.length === 1 ? 'study' : 'studies'} from ${docs.length} SR file${docs.length === 1 ? '' : 's'}${outPath ? ` written to ${outPath}` : ''}.`);
   if (identifying > 0) info('identifying attributes in the files (names, IDs, birth dates, UIDs and the like) were ignored: none is written.');
