@@ -191,6 +191,11 @@ describe('sr-cohort', () => {
     const refused = await runCli(['sr-cohort', folder, '--ids', badIds, '--out', out2]);
     expect(refused.code).toBe(2);
     expect(refused.stderr).toMatch(/^elastimate: ids row 2: got .*accepted: a pseudonymous id/);
+    // --out over the id map it reads: refused, the map untouched.
+    const overIds = await runCli(['sr-cohort', folder, '--ids', ids, '--out', ids]);
+    expect(overIds.code).toBe(2);
+    expect(overIds.stderr).toMatch(/^elastimate: out: /);
+    expect(readFileSync(ids, 'utf8')).toBe('file,subject\na1.dcm,CO-301\na2.dcm,CO-301\nb1.dcm,CO-302\n');
     writeFileSync(join(folder, 'readme.txt'), 'not a report');
     const withText = await runCli(['sr-cohort', folder, '--out', out2]);
     expectRefusal(withText, join(folder, 'readme.txt'), /not a DICOM file/);
