@@ -14,13 +14,14 @@
  * whole run succeeded. Progress goes to stderr, on a terminal only.
  */
 import { availableParallelism } from 'node:os';
-import { closeSync, createReadStream, createWriteStream, fstatSync, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
+import { closeSync, createWriteStream, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
 import { FILE_MODE } from '../records/file-mode.js';
+import { BATCH_FILE, openInputStream } from '../io/read-input.js';
 import { info } from './messages.js';
 import { checkOutputPath } from './output-files.js';
 import { BatchSheet, RecordPieces } from '../records/batch-row.js';
@@ -223,17 +224,10 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   const showProgress = Boolean(process.stderr.isTTY);
   const tempPath = outPath ? join(dirname(outPath), `.${basename(outPath)}.${process.pid}.tmp`) : undefined;
 
-  const input = createReadStream(inPath, { highWaterMark: CHUNK_BYTES, encoding: 'utf8' });
-  const inputFd = await new Promise<number>((ok, fail) => {
-    input.once('open', (fd) => ok(fd));
-    input.once('error', (err) => fail(openProblem(inPath, err, 'batch file')));
-  });
-  const inputStat = fstatSync(inputFd);
-  if (inputStat.isDirectory()) {
-    input.destroy();
-    throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'is a folder', accepted: 'a readable CSV file with a header row (docs/batch.md)' });
-  }
-  const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
+  // The one input reader: a regular file (or `-`, standard input) within the batch limit, checked before
+  // a byte is read, so a folder, a FIFO or /dev/zero is refused at once.
+  const input = openInputStream(inPath, BATCH_FILE, CHUNK_BYTES);
+  const workers = workerCount(input.size ?? 0);
 
   let output: Writable = process.stdout;
   if (tempPath) {
@@ -247,7 +241,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input as AsyncIterable<string>, output, workers, (rows) => {
+    counts = await streamRows(input.chunks, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
     if (!counts.header) {
@@ -260,7 +254,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
       fsyncDirectory(dirname(outPath));
     }
   } catch (err) {
-    input.destroy();
+    input.close();
     // The reader of standard output went away (e.g. `| head`): stop quietly, as Unix tools do.
     if (!tempPath && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
     if (tempPath) {

@@ -34,7 +34,7 @@ export function buildProgram(): Command {
     .description('assess one visit from flags, a visit file or prompts');
   addMeasurementOptions(assess);
   assess
-    .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
+    .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
     .option('--json', 'print one JSON object (docs/json-output.md)')
     .option('--recheck', 'show the method variants side by side')
