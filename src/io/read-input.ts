@@ -83,7 +83,7 @@ export function shownPath(path: string): string {
 }
 
 function problem(kind: InputKind, path: string, reason: string): InputError {
-  return new InputError({ field: kind.field, value: shownPath(path), reason, accepted: kind.accepted });
+  return new InputError({ field: kind.field, value: kind.stdin ? shownPath(path) : showValue(path), reason, accepted: kind.accepted });
 }
 
 function tooLarge(kind: InputKind, path: string, size: number | null): InputError {
