@@ -20,7 +20,7 @@ beforeAll(() => {
   writeFileSync(fake, '#!/bin/sh\necho "Fake Browser 1.2.3"\n');
   chmodSync(fake, 0o755);
   broken = join(dir, 'broken-browser');
-  writeFileSync(broken, '#!/bin/sh\nexit 1\n');
+  writeFileSync(broken, '#!/bin/sh\necho "cannot start: no display"\nexit 1\n');
   chmodSync(broken, 0o755);
   symlinkSync(process.execPath, join(dir, 'node'));
 });
