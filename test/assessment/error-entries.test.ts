@@ -6,20 +6,13 @@
  */
 import { describe, expect, it } from 'vitest';
 import { checkRawShape } from '../../src/assessment/inputs.js';
-import { InputError } from '../../src/errors.js';
+import { inputErrorMessage } from '../fixtures/input-error.js';
 
 describe('checkRawShape: error entries', () => {
   it('refuses an entry "__proto__" (an own key after JSON.parse) naming it, with the accepted input names', () => {
     const raw = JSON.parse('{"sbp":130,"errors":{"__proto__":5,"sbp":6}}');
     expect(Object.keys(raw.errors)).toContain('__proto__');
-    let err: unknown;
-    try {
-      checkRawShape(raw);
-    } catch (e) {
-      err = e;
-    }
-    expect(err).toBeInstanceOf(InputError);
-    expect((err as Error).message).toBe('error: got "__proto__"; not an input whose error reaches a result; accepted: one of sbp, dbp, hr, edv, esv, ef, sv, lvot-diameter, lvot-vti, pep, et, pes-measured, height, weight');
+    expect(inputErrorMessage(() => checkRawShape(raw))).toBe('error: got "__proto__"; not an input whose error reaches a result; accepted: one of sbp, dbp, hr, edv, esv, ef, sv, lvot-diameter, lvot-vti, pep, et, pes-measured, height, weight');
   });
 
   it('keeps entries that name inputs', () => {

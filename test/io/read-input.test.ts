@@ -9,6 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
+import { inputErrorMessage } from '../fixtures/input-error.js';
 import { BATCH_FILE, SUBJECT_FILE, VISIT_FILE, formatSize, openInputStream, readInputFile, readInputFileIfExists, type InputKind } from '../../src/io/read-input.js';
 
 let dir: string;
@@ -19,15 +20,7 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const SMALL: InputKind = { ...VISIT_FILE, limit: 10 };
 
-function refusal(run: () => unknown): string {
-  try {
-    run();
-  } catch (err) {
-    expect(err).toBeInstanceOf(InputError);
-    return (err as Error).message;
-  }
-  throw new Error('not refused');
-}
+const refusal = inputErrorMessage;
 
 describe('readInputFile', () => {
   it('reads a regular file, also through a symbolic link', () => {

@@ -7,20 +7,12 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { InputError } from '../../src/errors.js';
+import { inputErrorMessage } from '../fixtures/input-error.js';
 import { MAX_JSON_DEPTH, findJsonShapeProblem, lineAndColumn, parseJsonText } from '../../src/io/read-json.js';
 
 const SOURCE = { field: 'input', value: '"v.json"', accepted: 'a visit file' };
 
-function message(text: string): string {
-  try {
-    parseJsonText(text, SOURCE);
-  } catch (err) {
-    expect(err).toBeInstanceOf(InputError);
-    return (err as Error).message;
-  }
-  throw new Error('accepted');
-}
+const message = (text: string) => inputErrorMessage(() => parseJsonText(text, SOURCE));
 
 describe('duplicate keys', () => {
   it('at the top, nested in an object, in an object inside an array: refused with the key and both positions', () => {
