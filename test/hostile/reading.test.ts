@@ -159,6 +159,19 @@ describe('control characters never reach a screen or a file raw; notes are store
     expect(run.stdout).toContain('subject CO-\ufffd2J');
   });
 
+  it('record add and record remove: the id and note in their lines and warnings are shown with stand-ins', async () => {
+    const path = join(dir, 'added.subject.json');
+    // A C1 control passes the id check (which refuses C0 and DEL); a date in the id draws a warning that quotes it.
+    const add = ok(await runCli(['record', 'add', path, '--subject', 'CO-\u009b2J-1980-05-04', '--input', VISIT, '--date', '2024-06-01', '--note', 'a\u001b[2Jb', '--no-input']));
+    expect(add.stdout + add.stderr).not.toMatch(RAW_CONTROL);
+    expect(add.stdout).toContain('subject CO-\ufffd2J-1980-05-04');
+    expect(add.stderr).toContain('warning: subject id "CO-\ufffd2J-1980-05-04" contains what looks like a full date');
+    expect(JSON.parse(readFileSync(path, 'utf8')).visits[0].note).toBe('a\u001b[2Jb');
+    const remove = ok(await runCli(['record', 'remove', path, '1', '--yes']));
+    expect(remove.stdout + remove.stderr).not.toMatch(RAW_CONTROL);
+    expect(remove.stdout).toContain('(note: a␛[2Jb)');
+  });
+
   it('record show --json keeps the note exactly (C1 and DEL as \\u escapes)', async () => {
     const run = ok(await runCli(['record', 'show', subject, '--json']));
     expect(run.stdout).not.toMatch(RAW_CONTROL);
