@@ -224,6 +224,13 @@ describe('error messages stay readable', () => {
     expect(errorCell).toMatch(/got ""9{80}""… \(300,001 characters\)/);
   });
 
+  it('an unknown option of 100,000 characters is echoed as 80 characters and its length', async () => {
+    const run = await runCli(['assess', `--${'x'.repeat(99_998)}`]);
+    expect(run.code).toBe(2);
+    expect(run.stderr).toMatch(/^elastimate: option: got "--x{78}"… \(100,000 characters\); unknown/);
+    expect(run.stderr.length).toBeLessThan(300);
+  });
+
   it('an unknown key holding control characters is shown with visible stand-ins', async () => {
     const path = file('key.visit.json', JSON.stringify({ ...MEASURES, 'bad\u001b[2Jkey': 1 }));
     const run = await runCli(['assess', '--input', path, '--no-input']);
