@@ -169,30 +169,34 @@ function pause(ms: number): void {
   Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
 }
 
-/** Read an open descriptor to its end, refusing more than the limit. */
+/**
+ * Read an open descriptor to its end into one buffer (sized from the file's
+ * size when known, doubled as needed), refusing more than the limit.
+ */
 function readAll(fd: number, kind: InputKind, path: string, sizeHint: number): Buffer {
-  const chunks: Buffer[] = [];
-  let total = 0;
-  let chunk = Buffer.allocUnsafe(Math.min(Math.max(sizeHint + 1, 64 * 1024), kind.limit + 1));
+  let buf = Buffer.allocUnsafe(Math.min(Math.max(sizeHint + 1, 64 * 1024), kind.limit + 1));
+  let length = 0;
   for (;;) {
+    if (length === buf.length) {
+      const next = Buffer.allocUnsafe(Math.min(buf.length * 2, kind.limit + 1));
+      buf.copy(next, 0, 0, length);
+      buf = next;
+    }
     let n: number;
     try {
-      n = readSync(fd, chunk, 0, chunk.length, null);
+      n = readSync(fd, buf, length, buf.length - length, null);
     } catch (err) {
-      const code = (err as NodeJS.ErrnoException).code;
-      if (code === 'EAGAIN') {
+      if ((err as NodeJS.ErrnoException).code === 'EAGAIN') {
         pause(5);
         continue;
       }
       throw openProblem(kind, path, err);
     }
     if (n === 0) break;
-    total += n;
-    if (total > kind.limit) throw tooLarge(kind, path, null);
-    chunks.push(chunk.subarray(0, n));
-    chunk = Buffer.allocUnsafe(chunk.length);
+    length += n;
+    if (length > kind.limit) throw tooLarge(kind, path, null);
   }
-  return chunks.length === 1 ? chunks[0]! : Buffer.concat(chunks, total);
+  return buf.subarray(0, length);
 }
 
 /**
