@@ -3,12 +3,13 @@
  * directory, FIFO, character device, symbolic link: IEEE Std 1003.1, <sys/stat.h>
  * file types). Spawned-CLI cases are in test/hostile/reading.test.ts.
  */
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
+import { requireBuild } from '../cli/fixtures/run-cli.js';
 import { inputErrorMessage } from '../fixtures/input-error.js';
 import { BATCH_FILE, SUBJECT_FILE, VISIT_FILE, formatSize, openInputStream, readInputFile, readInputFileIfExists, type InputKind } from '../../src/io/read-input.js';
 
@@ -79,6 +80,31 @@ describe('openInputStream', () => {
     let text = '';
     for await (const chunk of openInputStream(path, BATCH_FILE, 3).chunks) text += chunk;
     expect(text).toBe('é'.repeat(100));
+  });
+});
+
+describe('standard input, counted as it arrives', () => {
+  // A child process whose standard input is a pipe, running the built reader (dist/, `npm run build`) with a 1,000-byte limit.
+  const script = (kind: string) => `
+    import { ${kind}, openInputStream, readInputFile } from ${JSON.stringify(new URL('../../dist/io/read-input.js', import.meta.url).href)};
+    const kind = { ...${kind}, limit: 1000 };
+    try {
+      if (process.argv[2] === 'stream') { let n = 0; for await (const c of openInputStream('-', kind, 64).chunks) n += c.length; console.log('read', n); }
+      else console.log('read', readInputFile('-', kind).length);
+    } catch (err) { console.log(err.message); }`;
+  const run = (mode: 'stream' | 'whole', bytes: number) =>
+    spawnSync(process.execPath, ['--input-type=module', '-e', script(mode === 'stream' ? 'BATCH_FILE' : 'VISIT_FILE'), mode], {
+      input: 'x'.repeat(bytes),
+      encoding: 'utf8',
+      timeout: 20_000,
+    });
+
+  it('reads up to the limit and refuses more, streamed (batch) or whole (visit file)', () => {
+    requireBuild();
+    for (const mode of ['stream', 'whole'] as const) {
+      expect(run(mode, 1000).stdout.trim()).toBe('read 1000');
+      expect(run(mode, 5000).stdout).toMatch(/got standard input \(-\); too large \(more than 1000 bytes; the limit for a (batch|visit) file is 1000 bytes\)/);
+    }
   });
 });
 
