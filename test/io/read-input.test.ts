@@ -89,7 +89,7 @@ describe('standard input, counted as it arrives', () => {
     import { ${kind}, openInputStream, readInputFile } from ${JSON.stringify(new URL('../../dist/io/read-input.js', import.meta.url).href)};
     const kind = { ...${kind}, limit: 1000 };
     try {
-      if (process.argv[2] === 'stream') { let n = 0; for await (const c of openInputStream('-', kind, 64).chunks) n += c.length; console.log('read', n); }
+      if (process.argv[1] === 'stream') { let n = 0; for await (const c of openInputStream('-', kind, 64).chunks) n += c.length; console.log('read', n); }
       else console.log('read', readInputFile('-', kind).length);
     } catch (err) { console.log(err.message); }`;
   const run = (mode: 'stream' | 'whole', bytes: number) =>
