@@ -21,6 +21,7 @@ import { createReadStream } from 'node:fs';
 import type { Readable } from 'node:stream';
 import { StringDecoder } from 'node:string_decoder';
 import { InputError, showValue } from '../errors.js';
+import { fileKind } from './safe-write.js';
 
 export interface InputKind {
   /** The field named in messages, e.g. `input` or `subject file`. */
@@ -91,14 +92,13 @@ function tooLarge(kind: InputKind, path: string, size: number | null): InputErro
   return problem(kind, path, `too large (${seen}; the limit for ${kind.noun} is ${formatSize(kind.limit)})`);
 }
 
-/** What a non-regular file is, in words; null for a regular file. */
+/** Why a non-regular file is refused, in words (its kind from safe-write's fileKind); null for a regular file. */
 function notRegular(stat: Stats): string | null {
-  if (stat.isFile()) return null;
-  if (stat.isDirectory()) return 'is a folder';
-  if (stat.isFIFO()) return 'is a named pipe (FIFO), not a regular file';
-  if (stat.isCharacterDevice() || stat.isBlockDevice()) return 'is a device, not a regular file';
-  if (stat.isSocket()) return 'is a socket, not a regular file';
-  return 'is not a regular file';
+  const kind = fileKind(stat);
+  if (kind === null) return null;
+  if (kind === 'a folder') return 'is a folder';
+  if (kind === 'not a regular file') return 'is not a regular file';
+  return `is ${kind}, not a regular file`;
 }
 
 function openProblem(kind: InputKind, path: string, err: unknown): InputError {
