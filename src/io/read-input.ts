@@ -105,7 +105,7 @@ function openProblem(kind: InputKind, path: string, err: unknown): InputError {
   const code = (err as NodeJS.ErrnoException).code;
   const reason =
     code === 'ENOENT' ? 'file not found'
-    : code === 'EACCES' || code === 'EPERM' ? 'permission denied'
+    : code === 'EACCES' || code === 'EPERM' ? 'cannot be read: permission denied'
     : code === 'EISDIR' ? 'is a folder'
     : code === 'ENXIO' ? 'is a socket or a device with nothing behind it, not a regular file'
     : code === 'ELOOP' ? 'a loop of symbolic links'
