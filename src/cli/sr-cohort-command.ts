@@ -15,7 +15,8 @@ import { SubjectIdSchema } from '../records/subject-schema.js';
 import { csvText } from '../render/csv.js';
 import { SR_TARGETS } from '../sr/codes.js';
 import { importStudy } from '../sr/import.js';
-import { readRegularFile, readSrFile, type SrDocument } from '../sr/read-dicom.js';
+import { readInputFile } from '../io/read-input.js';
+import { readSrFile, type SrDocument } from '../sr/read-dicom.js';
 import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 import { info } from './messages.js';
 import { inputKeys, inputUnits, readingKeys } from './sr-input.js';
@@ -42,7 +43,7 @@ function listFolder(folder: string): string[] {
 /** The user's map of SR file names to pseudonymous ids. */
 function readIdMap(path: string): Map<string, string> {
   const accepted = 'a CSV file with the columns file and subject (SR file name → pseudonymous id)';
-  const text = new TextDecoder('utf-8').decode(readRegularFile(path, { field: 'ids', maxBytes: MAX_ID_MAP_BYTES, accepted }));
+  const text = readInputFile(path, { field: 'ids', noun: 'an id map', limit: MAX_ID_MAP_BYTES, accepted, stdin: false }).toString('utf8');
   const rows = csvParseRows(text.replace(/^\uFEFF/, ''));
   const header = (rows[0] ?? []).map((h) => h.trim().toLowerCase());
   const fileAt = header.indexOf('file');

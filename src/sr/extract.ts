@@ -5,6 +5,7 @@
  * units from their UCUM code converted through the unit layer. Pure apart
  * from the unit layer; no file access and no dcmjs here.
  */
+import { showValue } from '../errors.js';
 import { convertMeasured } from '../units/quantity.js';
 import {
   CONCEPTS, FINDING_SITE, FLOW_DIRECTION, IMAGE_MODE, MEASUREMENT_METHOD, METHOD_RANK, METHOD_VALUES, METHOD_WORDS,
@@ -161,7 +162,7 @@ export function extract(doc: SrDocument, into?: Extracted): Extracted {
 export function convert(value: number, ucum: string | null, dimension: string, target: string): number | string {
   if (ucum === null) return 'no unit given';
   const unit = UCUM_UNITS.get(ucum);
-  const shown = JSON.stringify(ucum.length > 40 ? ucum.slice(0, 40) + '…' : ucum);
+  const shown = showValue(ucum); // clipped and with control characters made visible, as every shown value
   if (!unit) return `unknown unit ${shown} (UCUM codes such as mL, mm, ms, m/s, /min, % are read)`;
   if (unit.dimension !== dimension) return `unit ${shown} is not a ${dimension} unit`;
   if (dimension === 'percent' || dimension === 'ratio') return value;

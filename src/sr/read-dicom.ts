@@ -13,10 +13,11 @@
  * item without its unit, a code without its scheme).
  */
 import { createHash } from 'node:crypto';
-import { closeSync, constants, existsSync, fstatSync, openSync, readSync } from 'node:fs';
+import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { InputError, showValue } from '../errors.js';
+import { readInputFile, type InputKind } from '../io/read-input.js';
 
 /** Larger than any echo report; a bigger file is refused before it is read. */
 export const MAX_SR_BYTES = 32 * 1024 * 1024;
@@ -72,42 +73,19 @@ function refuse(path: string, reason: string): InputError {
   return new InputError({ field: 'sr', value: showValue(path), reason, accepted: SR_ACCEPTED });
 }
 
-/** The file's bytes: a regular file no larger than MAX_SR_BYTES, else an InputError naming it. */
-export function readSrBytes(path: string): Uint8Array {
-  return readRegularFile(path, { field: 'sr', maxBytes: MAX_SR_BYTES, accepted: SR_ACCEPTED });
-}
+/** A DICOM SR file, for the one input reader (src/io/read-input.ts): regular, at most 32 MiB. */
+export const SR_FILE: InputKind = {
+  field: 'sr',
+  noun: 'a DICOM SR file',
+  limit: MAX_SR_BYTES,
+  accepted: SR_ACCEPTED,
+  stdin: false,
+};
 
-/**
- * A whole regular file, refused (InputError naming the field and path) when it is missing, a
- * folder, a device, pipe or socket, or larger than maxBytes. A FIFO is never waited on.
- */
-export function readRegularFile(path: string, rule: { field: string; maxBytes: number; accepted: string }): Uint8Array {
-  const refuse = (p: string, reason: string) => new InputError({ field: rule.field, value: showValue(p), reason, accepted: rule.accepted });
-  let fd: number;
-  try {
-    // O_NONBLOCK: opening a FIFO must not wait for a writer; it is refused below as not a regular file.
-    fd = openSync(path, constants.O_RDONLY | (constants.O_NONBLOCK ?? 0));
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw refuse(path, code === 'ENOENT' ? 'file not found' : code === 'EISDIR' ? 'is a folder' : 'cannot be read');
-  }
-  try {
-    const stat = fstatSync(fd);
-    if (stat.isDirectory()) throw refuse(path, 'is a folder');
-    if (!stat.isFile()) throw refuse(path, 'not a regular file (a device, pipe or socket)');
-    if (stat.size > rule.maxBytes) throw refuse(path, `larger than ${rule.maxBytes / 1024 / 1024} MiB`);
-    const bytes = new Uint8Array(stat.size);
-    let read = 0;
-    while (read < bytes.length) {
-      const n = readSync(fd, bytes, read, bytes.length - read, null);
-      if (n === 0) break;
-      read += n;
-    }
-    if (read !== bytes.length) throw refuse(path, 'the file changed while it was read');
-    return bytes;
-  } finally {
-    closeSync(fd);
-  }
+/** The file's bytes, through the shared input reader (missing, folder, device, pipe, oversized: refused). */
+export function readSrBytes(path: string): Uint8Array {
+  const bytes = readInputFile(path, SR_FILE);
+  return new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }
 
 type Dcmjs = typeof import('dcmjs').default;
