@@ -15,18 +15,43 @@ import { RESULT_KEYS, type ResultKey, type Results } from '../assessment/compute
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
+import { bareNumber } from '../units/quantity.js';
 import { decimalsFor, formatNumber } from './format.js';
 
 /** RFC 4180 line end. */
 export const CRLF = '\r\n';
 
 /**
- * Rows as RFC 4180 text: d3-dsv quotes a cell that holds a comma, a double
- * quote or a line break (doubling the quotes); each row ends with CRLF.
+ * Whether a text cell would be taken for a formula by a spreadsheet: it
+ * begins with `=`, `+`, `-`, `@`, a tab or a carriage return (OWASP, "CSV
+ * Injection") and is not a plain number (`-2.5` and `+3` are numbers, never
+ * formulas, and stay numbers).
+ */
+function looksLikeFormula(cell: string): boolean {
+  const c = cell.charCodeAt(0);
+  if (c !== 61 && c !== 43 && c !== 45 && c !== 64 && c !== 9 && c !== 13) return false;
+  return bareNumber(cell) !== bareNumber(cell); // NaN: not a plain number
+}
+
+/**
+ * The one CSV cell guard, for every CSV the tool writes (export and batch):
+ * a text cell a spreadsheet would run as a formula gets a leading single
+ * quote, as the OWASP CSV-injection guidance recommends; any other cell,
+ * numbers included, is returned as it is. Composes with the text sanitiser:
+ * sanitise first, then guard.
+ */
+export function guardCell(cell: string): string {
+  return looksLikeFormula(cell) ? `'${cell}` : cell;
+}
+
+/**
+ * Rows as RFC 4180 text: every cell through guardCell, then quoted by d3-dsv
+ * when it holds a comma, a double quote or a line break (doubling the
+ * quotes); each row ends with CRLF.
  */
 export function csvText(rows: readonly (readonly string[])[]): string {
   let text = '';
-  for (const row of rows) text += csvFormatRow(row) + CRLF;
+  for (const row of rows) text += csvFormatRow(row.map(guardCell)) + CRLF;
   return text;
 }
 
@@ -120,12 +145,13 @@ export class CsvBytes {
   }
 
   /**
-   * A text cell. Plain ASCII without a comma, a double quote or a line break
-   * (nearly every cell) is copied as it is, which is what d3-dsv's
-   * csvFormatValue returns for it; any other cell is quoted by csvFormatValue
-   * where needed and encoded as UTF-8 by Node.
+   * A text cell, through guardCell. Plain ASCII without a comma, a double
+   * quote or a line break (nearly every cell) is copied as it is, which is
+   * what d3-dsv's csvFormatValue returns for it; any other cell is quoted by
+   * csvFormatValue where needed and encoded as UTF-8 by Node.
    */
-  text(cell: string): void {
+  text(text: string): void {
+    const cell = guardCell(text);
     const n = cell.length;
     this.room(n);
     const buf = this.buf;
