@@ -202,11 +202,16 @@ function decimalPoint(text: string): string {
   return /^[+-]?\d*,\d/.test(text) ? `${text.slice(0, comma)}.${text.slice(comma + 1)}` : text;
 }
 
-/** Plain numbers separated by spaces: several readings. */
-function spacedReadings(cell: string): string[] | undefined {
+/** Plain numbers (with a decimal comma where the file uses one) separated by spaces: several readings. */
+function spacedReadings(cell: string, decimalComma: boolean): string[] | undefined {
   if (!/\s/.test(cell)) return undefined;
   const parts = cell.split(/\s+/);
-  return parts.every((p) => bareNumber(p) === bareNumber(p)) ? parts : undefined;
+  return parts.every((p) => {
+    const n = bareNumber(decimalComma ? decimalPoint(p) : p);
+    return n === n;
+  })
+    ? parts
+    : undefined;
 }
 
 /**
@@ -241,7 +246,7 @@ function readCells(layout: BatchLayout, cells: readonly string[], numbers: unkno
     if (isMissingMark(cell)) continue;
     switch (column.kind) {
       case 'number': {
-        const list = !column.multiple ? undefined : cell.includes(';') || cell.includes('|') ? cell.split(/[;|]/).map((s) => s.trim()).filter((s) => s !== '') : spacedReadings(cell);
+        const list = !column.multiple ? undefined : cell.includes(';') || cell.includes('|') ? cell.split(/[;|]/).map((s) => s.trim()).filter((s) => s !== '') : spacedReadings(cell, decimalComma);
         if (list) {
           if (checkShape && (list.length === 0 || list.length > MAX_READINGS)) (badLists ??= []).push(column.field);
           numbers[column.field] = decimalComma || unit !== '' ? list.map((r) => numericText(r, unit, decimalComma, typed)) : list;
