@@ -49,18 +49,21 @@ const QUOTE = 34;
 const LF = 10;
 const CR = 13;
 
-type Read = { kind: 'good'; next: number } | { kind: 'incomplete' } | { kind: 'bad'; next: number; blamed: Blame; reason: string };
 interface Blame {
   cell: number;
   at: number;
 }
-const INCOMPLETE: Read = { kind: 'incomplete' };
+/** readRecord's answer when the text ends before the record can be told; a bad record is the position after its line, negated, less one. */
+const INCOMPLETE = -1;
+/** Why readRecord last answered "bad": the quote to blame and the reason (one record at a time, so no object per record). */
+let lastBad: { blamed: Blame; reason: string } = { blamed: { cell: 0, at: 0 }, reason: '' };
 
 function hasBreak(s: string, from: number, to: number): boolean {
-  const lf = s.indexOf('\n', from);
-  if (lf !== -1 && lf < to) return true;
-  const cr = s.indexOf('\r', from);
-  return cr !== -1 && cr < to;
+  for (let i = from; i < to; i++) {
+    const c = s.charCodeAt(i);
+    if (c === LF || c === CR) return true;
+  }
+  return false;
 }
 
 /** The end of the line holding `at` (the position of its line break, or the text's end), and where the next line starts; undefined while it may still change. */
@@ -80,22 +83,29 @@ function lineEnd(s: string, at: number, final: boolean): { end: number; next: nu
   return { end, next: end + 1 };
 }
 
+/** readRecord's answer for a bad record, noting why in lastBad; INCOMPLETE while the end of the quote's line is unknown. */
+function badAnswer(s: string, blamed: Blame, reason: string, final: boolean): number {
+  const line = lineEnd(s, blamed.at, final);
+  if (!line) return INCOMPLETE;
+  lastBad = { blamed, reason };
+  return -2 - line.next;
+}
+
 /**
  * Read the record that starts at `start` (RFC 4180, with `sep` as the
- * separator): where the next one starts, or that its quotes do not pair up
- * (the quote to blame: the first quoted cell that spans lines, else the cell
- * at fault), or that the text ends before this can be told (`final` false).
- * `width` is the header's cell count (-1 while reading the header itself).
+ * separator). Answers where the next record starts (≥ 0); or, for a record
+ * whose quotes do not pair up, -2 - where reading resumes (the line after the
+ * blamed quote: the first quoted cell that spans lines, else the cell at
+ * fault), the reason in lastBad; or INCOMPLETE when the text ends before
+ * this can be told (`final` false). `width` is the header's cell count (-1
+ * while reading the header itself). Numbers, not objects: this runs for every
+ * record that holds a quote.
  */
-function readRecord(s: string, start: number, sep: number, width: number, final: boolean): Read {
+function readRecord(s: string, start: number, sep: number, width: number, final: boolean): number {
   const n = s.length;
   let i = start;
   let cells = 0;
   let spanning: Blame | undefined;
-  const bad = (blamed: Blame, reason: string): Read => {
-    const line = lineEnd(s, blamed.at, final);
-    return line ? { kind: 'bad', next: line.next, blamed, reason } : INCOMPLETE;
-  };
   for (;;) {
     if (i < n && s.charCodeAt(i) === QUOTE) {
       const open = i;
@@ -106,7 +116,7 @@ function readRecord(s: string, start: number, sep: number, width: number, final:
         if (q === -1 || q - open > MAX_QUOTED_CELL) {
           if (q === -1 && !final && n - open <= MAX_QUOTED_CELL) return INCOMPLETE;
           const reason = q === -1 ? 'the quoted cell is never closed' : `the quoted cell runs on for more than ${MAX_QUOTED_CELL} characters`;
-          return bad(spanning ?? { cell: cells, at: open }, reason);
+          return badAnswer(s, spanning ?? { cell: cells, at: open }, reason, final);
         }
         if (q + 1 < n && s.charCodeAt(q + 1) === QUOTE) {
           j = q + 2; // a doubled quote inside the cell
@@ -125,7 +135,7 @@ function readRecord(s: string, start: number, sep: number, width: number, final:
         continue;
       }
       if (c !== -1 && c !== LF && c !== CR) {
-        return bad(spanning ?? { cell: cells - 1, at: open }, 'text follows the closing quote in the same cell');
+        return badAnswer(s, spanning ?? { cell: cells - 1, at: open }, 'text follows the closing quote in the same cell', final);
       }
     } else {
       let c = i < n ? s.charCodeAt(i) : -1;
@@ -146,10 +156,49 @@ function readRecord(s: string, start: number, sep: number, width: number, final:
       next = s.charCodeAt(i + 1) === LF ? i + 2 : i + 1;
     } else next = i + 1;
     if (spanning !== undefined && width >= 0 && cells !== width) {
-      return bad(spanning, `the record it opens would have ${cells} cells where the header has ${width}`);
+      return badAnswer(s, spanning, `the record it opens would have ${cells} cells where the header has ${width}`, final);
     }
-    return { kind: 'good', next };
+    return next;
   }
+}
+
+/**
+ * readRecord for the usual record with a quote: on one line, every quote that
+ * opens a cell closed on that line and followed by the separator or the line
+ * end. Jumps from quote to quote instead of reading every character, and
+ * answers -3 ("ask readRecord") for anything else. `lineEnd` is where the
+ * line starting at `start` ends (its first LF or CR, or the text's length).
+ */
+function quickRecord(s: string, start: number, sep: number, final: boolean, end: number): number {
+  const n = s.length;
+  if (end >= n) return -3; // the line may go on, or ends the input: readRecord decides
+  let q = s.indexOf('"', start);
+  while (q !== -1 && q < end) {
+    if (q === start || s.charCodeAt(q - 1) === sep) {
+      // A quote opens this cell: it must close before the line end and be followed by the separator or the line end.
+      let j = q + 1;
+      let close = -1;
+      for (;;) {
+        const c = s.indexOf('"', j);
+        if (c === -1 || c >= end) break;
+        if (s.charCodeAt(c + 1) === QUOTE) {
+          j = c + 2;
+          continue;
+        }
+        close = c;
+        break;
+      }
+      if (close === -1) return -3;
+      const after = close + 1;
+      if (after !== end && s.charCodeAt(after) !== sep) return -3;
+      q = s.indexOf('"', after);
+    } else q = s.indexOf('"', q + 1); // a quote inside an unquoted cell is a plain character
+  }
+  if (s.charCodeAt(end) === CR) {
+    if (end + 1 >= n && !final) return -3;
+    return s.charCodeAt(end + 1) === LF ? end + 2 : end + 1;
+  }
+  return end + 1;
 }
 
 /** Line breaks in s[from, to): LF, CRLF (once) or a lone CR. */
@@ -162,7 +211,13 @@ function countBreaks(s: string, from: number, to: number): number {
 
 /** The start of the line holding position `at`, not before `from`. */
 function lineStart(s: string, at: number, from: number): number {
-  return Math.max(s.lastIndexOf('\n', at - 1), s.lastIndexOf('\r', at - 1), from - 1) + 1;
+  let i = at;
+  while (i > from) {
+    const c = s.charCodeAt(i - 1);
+    if (c === LF || c === CR) break;
+    i--;
+  }
+  return i;
 }
 
 /** The separator of a header record: the most frequent of comma, semicolon and tab outside quotes (a comma on a tie). */
@@ -226,25 +281,37 @@ export class RecordSplitter {
       }
       pos = header;
     }
+    let crAt = -2; // the first CR at or after pos (-1: none), found when needed
     for (;;) {
       const q = s.indexOf('"', pos);
       if (q === -1) break;
-      const start = lineStart(s, q, pos);
-      const read = readRecord(s, start, this.sep, this.width, final);
-      if (read.kind === 'incomplete') {
+      if (crAt !== -1 && crAt < pos) crAt = s.indexOf('\r', pos);
+      // The record holding the quote starts on the quote's line (the lines before it hold no quote).
+      const plain = (crAt === -1 || crAt > q) && (pos === 0 || s.charCodeAt(pos - 1) === LF);
+      const start = plain ? Math.max(pos, s.lastIndexOf('\n', q - 1) + 1) : lineStart(s, q, pos);
+      let end = s.indexOf('\n', q);
+      if (end === -1) end = s.length;
+      if (crAt !== -1) {
+        const cr = crAt >= q ? crAt : s.indexOf('\r', q);
+        if (cr !== -1 && cr < end) end = cr;
+      }
+      let next = quickRecord(s, start, this.sep, final, end);
+      if (next === -3) next = readRecord(s, start, this.sep, this.width, final);
+      if (next === INCOMPLETE) {
         give(start);
         this.line += countBreaks(s, counted, start);
         this.pending = s.slice(start);
         return out;
       }
-      if (read.kind === 'bad') {
+      if (next < 0) {
+        next = -2 - next;
         give(start);
         this.line += countBreaks(s, counted, start);
         counted = start;
-        out.push({ bad: this.badRecord(s, start, read.blamed, read.reason, final, this.line) });
-        from = read.next;
+        out.push({ bad: this.badRecord(s, start, lastBad.blamed, lastBad.reason, final, this.line) });
+        from = next;
       }
-      pos = read.next;
+      pos = next;
     }
     // No quote from pos on: cut after the last line break (all of it at the end of the input).
     let cutAt = s.length;
@@ -275,14 +342,11 @@ export class RecordSplitter {
     if (end >= s.length && !final && s.length - start <= MAX_QUOTED_CELL) return undefined;
     this.dialect = detectDialect(s.slice(start, end));
     this.sep = this.dialect.separator.charCodeAt(0);
-    const read = readRecord(s, start, this.sep, -1, final);
-    if (read.kind === 'incomplete') return undefined;
-    if (read.kind === 'bad') {
-      const bad = this.badRecord(s, start, read.blamed, read.reason, final, this.line + countBreaks(s, 0, start));
-      throw new HeaderQuoteError(bad);
-    }
-    this.width = dsvFormat(this.dialect.separator).parseRows(s.slice(start, read.next))[0]?.length ?? 0;
-    return read.next;
+    const next = readRecord(s, start, this.sep, -1, final);
+    if (next === INCOMPLETE) return undefined;
+    if (next < 0) throw new HeaderQuoteError(this.badRecord(s, start, lastBad.blamed, lastBad.reason, final, this.line + countBreaks(s, 0, start)));
+    this.width = dsvFormat(this.dialect.separator).parseRows(s.slice(start, next))[0]?.length ?? 0;
+    return next;
   }
 
   /** The bad record that starts at `start`, on file line `line`. */
