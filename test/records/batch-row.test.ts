@@ -137,3 +137,43 @@ describe('CSV cells', () => {
     for (const key of RESULT_KEYS) expect(RESULT_UNITS[key], key).toBe(a.results[key].unit);
   });
 });
+
+describe('the record splitter on any text (self-consistency: chunked against whole)', () => {
+  /** Every segment as records: good text parsed by d3-dsv, a bad record as its line, column and cells. */
+  function segmentsOf(text: string, cuts: number[]): unknown[] {
+    const splitter = new RecordSplitter();
+    const out: unknown[] = [];
+    const take = (segments: ReturnType<RecordSplitter['push']>) => {
+      for (const s of segments) out.push(...(s.bad ? [{ line: s.bad.line, column: s.bad.column, cells: s.bad.cells }] : csvParseRows(s.text)));
+    };
+    if (cuts.length === 0) take(splitter.push(text));
+    else for (let at = 0, k = 0; at < text.length; k++) {
+      const size = cuts[k % cuts.length]!;
+      take(splitter.push(text.slice(at, at + size)));
+      at += size;
+    }
+    take(splitter.end());
+    return out;
+  }
+
+  it('gives the same records and the same bad lines wherever the input is cut, bad lines in order and inside the text', async () => {
+    const fc = (await import('fast-check')).default;
+    const piece = fc.constantFrom('a', 'b1', ',', ',', '"', '""', '\n', '\r\n', '\r', ' ', 'é');
+    fc.assert(
+      fc.property(fc.array(piece, { maxLength: 60 }), fc.array(fc.integer({ min: 1, max: 7 }), { minLength: 1, maxLength: 4 }), (parts, cuts) => {
+        const text = `h1,h2,h3\n${parts.join('')}`;
+        const whole = segmentsOf(text, []);
+        expect(segmentsOf(text, cuts)).toEqual(whole);
+        // Every bad record's line exists in the text, and lines are reported in order.
+        const lines = text.split(/\r\n|\r|\n/).length;
+        const bad = whole.filter((r): r is { line: number } => !Array.isArray(r));
+        for (const [i, b] of bad.entries()) {
+          expect(b.line).toBeGreaterThan(1);
+          expect(b.line).toBeLessThanOrEqual(lines);
+          if (i > 0) expect(b.line).toBeGreaterThan(bad[i - 1]!.line);
+        }
+      }),
+      { numRuns: 2000 },
+    );
+  });
+});
