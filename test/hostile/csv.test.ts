@@ -92,7 +92,7 @@ describe('a stray double quote never swallows later records (issue 8, item 3)', 
     ok(run);
     expect(rows).toHaveLength(n);
     expect(rows.every((r, i) => r.id === `L${i + 1}`)).toBe(true);
-    expect(rows.filter((r) => r.error !== '').map((r) => [r.id, /^line 9001, column 9 \("note"\): .*never closed/.test(r.error ?? "")])).toEqual([['L9000', true]]);
+    expect(rows.filter((r) => r.error !== '').map((r) => [r.id, /^line 9001, column 9 \("note"\): .*never closed/.test(r.error ?? '')])).toEqual([['L9000', true]]);
     expect(run.stderr).toMatch(new RegExp(`${n} record\\(s\\) read, ${n} written, 1 with an error`));
   });
 
