@@ -24,7 +24,7 @@ import { FILE_MODE } from '../records/file-mode.js';
 import { info } from './messages.js';
 import { checkOutputPath } from './output-files.js';
 import { BatchSheet } from '../records/batch-row.js';
-import { HeaderQuoteError, RecordSplitter, type Segment } from '../records/csv-records.js';
+import { HeaderQuoteError, MAX_RECORD, RecordSplitter, RecordTooLongError, type Segment } from '../records/csv-records.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
 
@@ -165,7 +165,7 @@ function workerCount(sizeBytes: number): number {
  * The whole run against an opened input and output; returns the counts.
  * Pieces are written in input order whichever thread computed them.
  */
-async function streamRows(input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
+async function streamRows(inPath: string, input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
   const splitter = new RecordSplitter();
   let sheet: BatchSheet | undefined; // this thread's: reads the header, and computes pieces no worker has room for
   // Started before the first read, so they load while this thread reads the header and the first rows.
@@ -229,6 +229,9 @@ async function streamRows(input: AsyncIterable<string>, output: Writable, worker
     if (err instanceof HeaderQuoteError) {
       throw new InputError({ field: `header, line ${err.bad.line}, column ${err.bad.column}`, value: showValue(err.bad.text.slice(0, 80)), reason: `a double quote opens this column name and ${err.bad.reason}`, accepted: 'a header row whose quoted names are closed (docs/batch.md)' });
     }
+    if (err instanceof RecordTooLongError) {
+      throw new InputError({ field: `batch file, line ${err.line}`, value: showValue(inPath), reason: `a record runs on for more than ${MAX_RECORD} characters without a line break`, accepted: 'a CSV file with a header row and one visit per record (docs/batch.md)' });
+    }
     throw err;
   } finally {
     await Promise.all(pool.map((w) => w.close()));
@@ -265,7 +268,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input as AsyncIterable<string>, output, workers, (rows) => {
+    counts = await streamRows(inPath, input as AsyncIterable<string>, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
     if (!counts.header) {

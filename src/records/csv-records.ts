@@ -19,6 +19,8 @@ import { dsvFormat } from 'd3-dsv';
 
 /** A quoted cell longer than this (in characters) is refused: far beyond any note, and it bounds what is held in memory. */
 export const MAX_QUOTED_CELL = 1 << 20;
+/** A record that runs on for more than this without a line break refuses the file: no spreadsheet row is that long. */
+export const MAX_RECORD = 4 * MAX_QUOTED_CELL;
 
 export type Separator = ',' | ';' | '\t';
 
@@ -261,6 +263,12 @@ export class RecordSplitter {
   }
 
   private cut(text: string, final: boolean): Segment[] {
+    const out = this.segments(text, final);
+    if (this.pending.length > MAX_RECORD) throw new RecordTooLongError(this.line);
+    return out;
+  }
+
+  private segments(text: string, final: boolean): Segment[] {
     let s = this.pending + text;
     if (!this.started && s.length > 0) {
       this.started = true;
@@ -357,6 +365,13 @@ export class RecordSplitter {
     const before = blamed.at > start ? (dsvFormat(sepChar).parseRows(s.slice(start, blamed.at))[0] ?? []).slice(0, -1) : [];
     const rest = s.slice(blamed.at, end);
     return { line, column: blamed.cell + 1, cells: [...before, ...rest.split(sepChar)], reason, text: rest };
+  }
+}
+
+/** A record longer than MAX_RECORD without a line break, from file line `line`: the file is refused. */
+export class RecordTooLongError extends Error {
+  constructor(readonly line: number) {
+    super(`line ${line}: a record longer than ${MAX_RECORD} characters`);
   }
 }
 

@@ -106,6 +106,16 @@ describe('a stray double quote never swallows later records (issue 8, item 3)', 
   });
 });
 
+describe('a record that never ends', () => {
+  it('a line of more than 4 MiB without a line break refuses the file at once (exit 2), naming the line; no output file', async () => {
+    const out = join(dir, 'never-long.csv');
+    const { run } = await batch('endless.csv', `${HEADER}\n${line('E1')}\n${'9'.repeat(5 * 1024 * 1024)}`, ['--out', out]);
+    expect(run.code).toBe(2);
+    expect(run.stderr).toMatch(/batch file, line 3: got ".*endless\.csv"; a record runs on for more than 4194304 characters without a line break/);
+    expect(() => readFileSync(out)).toThrow();
+  });
+});
+
 /** Text cells a spreadsheet would run (OWASP CSV-injection guidance: =, +, -, @, tab, carriage return). */
 const FORMULAS = ['=HYPERLINK("http://example.invalid","x")', '+1+cmd|\' /C calc\'!A0', '-2+3', '@SUM(1,2)', '\t=1+1', '\r=1+1'];
 
