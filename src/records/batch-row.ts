@@ -19,7 +19,7 @@ import { RESULT_KEYS, type Results } from '../assessment/compute.js';
 import type { Flag } from '../assessment/result.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
-import { CsvBytes, csvNumber, flagCell, notComputableCell, resultCells, resultColumnName, resultColumns, trailingColumns } from '../render/csv.js';
+import { CsvBytes, csvNumber, decimalsOf, flagCell, notComputableCell, resultCells, resultColumnName, resultColumns, trailingColumns } from '../render/csv.js';
 import { KINDS, bareNumber, toInternalUnit } from '../units/quantity.js';
 import type { BadRecord, Dialect } from './csv-records.js';
 
@@ -125,8 +125,8 @@ export interface BatchLayout {
   dialect: Dialect;
   /** Input column positions that feed the computation, and the unit a header gives a numeric column ('' for its own). */
   recognised: { index: number; column: ColumnKind; unit: string }[];
-  /** Numeric inputs as used (registry positions), one output column each after the input columns. */
-  used: { field: number; key: NumericKey; unit: string }[];
+  /** Numeric inputs as used (registry positions), one output column each after the input columns; `decimals` as csvNumber writes the unit. */
+  used: { field: number; key: NumericKey; unit: string; decimals: number }[];
   /** The output header: input columns, inputs as used, result columns, flags, notComputable, methodsVersion, error. */
   outputHeader: string[];
   /** Result columns renamed `<key>_result` because an input column had that name. */
@@ -175,7 +175,7 @@ export function planBatch(header: readonly string[], dialect: Dialect = COMMA): 
   const used = recognised
     .flatMap((r) => (r.column.kind === 'number' ? [r.column.field] : []))
     .sort((x, y) => x - y)
-    .map((field) => ({ field, key: NUMERIC_FIELDS[field]!.key, unit: NUMERIC_FIELDS[field]!.unit }))
+    .map((field) => ({ field, key: NUMERIC_FIELDS[field]!.key, unit: NUMERIC_FIELDS[field]!.unit, decimals: decimalsOf(NUMERIC_FIELDS[field]!.unit) }))
     // A result that reports the value used for an input (svUsed, efUsed) is that input's column as used already.
     .filter((u) => !resultNames.has(usedName(u.key)));
   const usedNames = used.map((u) => resultColumnName(usedName(u.key), taken));
@@ -204,7 +204,7 @@ function decimalPoint(text: string): string {
 
 /** Plain numbers (with a decimal comma where the file uses one) separated by spaces: several readings. */
 function spacedReadings(cell: string, decimalComma: boolean): string[] | undefined {
-  if (!/\s/.test(cell)) return undefined;
+  if (cell.indexOf(' ') === -1 && cell.indexOf('\t') === -1) return undefined;
   const parts = cell.split(/\s+/);
   return parts.every((p) => {
     const n = bareNumber(decimalComma ? decimalPoint(p) : p);
@@ -371,10 +371,8 @@ function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], 
     out.text(row.error);
   } else {
     const inputs = row.inputs;
-    for (const u of layout.used) {
-      out.comma();
-      out.number(inputs[u.key], u.unit);
-    }
+    const used = layout.used;
+    for (let i = 0; i < used.length; i++) out.commaNumber(inputs[used[i]!.key], used[i]!.decimals);
     out.resultCells(row.results);
     out.comma();
     out.text(flagCell(row.flags));

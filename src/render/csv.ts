@@ -28,10 +28,12 @@ export const CRLF = '\r\n';
  * formulas, and stay numbers).
  */
 function looksLikeFormula(cell: string): boolean {
-  const c = cell.charCodeAt(0);
-  if (c !== 61 && c !== 43 && c !== 45 && c !== 64 && c !== 9 && c !== 13) return false;
-  return bareNumber(cell) !== bareNumber(cell); // NaN: not a plain number
+  return FORMULA_START[cell.charCodeAt(0)] === 1 && bareNumber(cell) !== bareNumber(cell); // NaN: not a plain number
 }
+
+/** The first characters of a formula: = + - @ tab CR (1), by character code. */
+const FORMULA_START = new Uint8Array(128);
+for (const c of '=+-@\t\r') FORMULA_START[c.charCodeAt(0)] = 1;
 
 /**
  * The one CSV cell guard, for every CSV the tool writes (export and batch):
@@ -65,9 +67,9 @@ export const RESULT_UNITS: Partial<Record<ResultKey, string>> = {
 
 const SCALE = [1, 10, 100, 1000, 1e4, 1e5, 1e6, 1e7, 1e8];
 
-/** Decimals per unit, looked up once per unit rather than once per cell. */
+/** Decimals of a CSV number per unit (csvNumber), looked up once per unit rather than once per cell. */
 const csvDecimals = new Map<string, number>();
-function decimalsOf(unit: string): number {
+export function decimalsOf(unit: string): number {
   let d = csvDecimals.get(unit);
   if (d === undefined) {
     d = Math.min(decimalsFor(unit) + 2, SCALE.length - 1);
@@ -151,7 +153,7 @@ export class CsvBytes {
    * csvFormatValue where needed and encoded as UTF-8 by Node.
    */
   text(text: string): void {
-    const cell = guardCell(text);
+    const cell = FORMULA_START[text.charCodeAt(0)] === 1 ? guardCell(text) : text;
     const n = cell.length;
     this.room(n);
     const buf = this.buf;
@@ -197,6 +199,13 @@ export class CsvBytes {
   /** csvNumber(value, unit), written as bytes. */
   number(value: number | null | undefined, unit: string): void {
     this.numberWith(value, decimalsOf(unit));
+  }
+
+  /** A comma, then csvNumber(value, unit) for a unit whose decimals (csvDecimals) were looked up once. */
+  commaNumber(value: number | null | undefined, decimals: number): void {
+    this.room(1);
+    this.buf[this.pos++] = 44;
+    this.numberWith(value, decimals);
   }
 
   private numberWith(value: number | null | undefined, decimals: number): void {
