@@ -19,7 +19,7 @@ import { RESULT_KEYS, type Results } from '../assessment/compute.js';
 import type { Flag } from '../assessment/result.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
-import { CsvBytes, csvNumber, decimalsOf, flagCell, notComputableCell, resultCells, resultColumnName, resultColumns, trailingColumns } from '../render/csv.js';
+import { CsvBytes, csvNumber, decimalsOf, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
 import { KINDS, bareNumber, toInternalUnit } from '../units/quantity.js';
 import type { BadRecord, Dialect } from './csv-records.js';
 
@@ -178,20 +178,19 @@ export function planBatch(header: readonly string[], dialect: Dialect = COMMA): 
     .map((field) => ({ field, key: NUMERIC_FIELDS[field]!.key, unit: NUMERIC_FIELDS[field]!.unit, decimals: decimalsOf(NUMERIC_FIELDS[field]!.unit) }))
     // A result that reports the value used for an input (svUsed, efUsed) is that input's column as used already.
     .filter((u) => !resultNames.has(usedName(u.key)));
-  const usedNames = used.map((u) => resultColumnName(usedName(u.key), taken));
+  const usedNames = used.map((u) => usedName(u.key));
   const trailing = [...resultColumns(taken), ...trailingColumns(taken)];
   const clash = [...usedNames, ...trailing.map((c) => c.name)].find((name) => taken.has(name.toLowerCase()));
   if (clash) {
     throw new InputError({ field: `column ${showValue(clash)}`, value: showValue(clash), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash} (rename or drop it)` });
   }
-  const added = [...usedNames, ...trailing.map((c) => c.name)];
   return {
     header: [...header],
     dialect,
     recognised,
     used,
-    outputHeader: [...header, ...added],
-    renamed: added.filter((name) => name.endsWith('_result')),
+    outputHeader: [...header, ...usedNames, ...trailing.map((c) => c.name)],
+    renamed: trailing.filter((c) => c.name.endsWith('_result')).map((c) => c.name),
   };
 }
 
