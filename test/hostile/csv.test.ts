@@ -96,6 +96,29 @@ describe('a stray double quote never swallows later records (issue 8, item 3)', 
     expect(run.stderr).toMatch(new RegExp(`${n} record\\(s\\) read, ${n} written, 1 with an error`));
   });
 
+  it('a quoted cell running on for more than 1 MiB is an error row; the lines inside it are read as records of their own', async () => {
+    const long = `${'y'.repeat(999)}\n`.repeat(1100); // 1,100,000 characters over 1,100 lines
+    const text = `${HEADER}\n${line('G1')}\n${line('G2', `"${long}x"`)}\n${line('G3')}\n`;
+    const { run, rows } = await batch('long-cell.csv', text);
+    ok(run);
+    expect(rows[0]!.id).toBe('G1');
+    expect(rows[1]!.error).toMatch(/^line 3, column 9 \("note"\): .*runs on for more than 1048576 characters/);
+    expect(rows.at(-1)!.id).toBe('G3');
+    expect(rows.at(-1)!.error).toBe('');
+    // G1, G2 (its line holds the first line of y), the other 1,099 lines of y, the line `x"`, G3: every line after
+    // the bad one is a record of its own.
+    expect(rows).toHaveLength(1 + 1 + 1099 + 1 + 1);
+  });
+
+  it('old Mac line ends (CR alone): a stray quote is reported at the right line', async () => {
+    const text = [HEADER, line('R1'), line('R2', '"oops'), line('R3'), ''].join('\r');
+    const { run, rows } = await batch('cr.csv', text);
+    ok(run);
+    expect(rows.map((r) => r.id)).toEqual(['R1', 'R2', 'R3']);
+    expect(rows[1]!.error).toMatch(/^line 3, column 9 \("note"\): .*never closed/);
+    expect(rows[2]!.error).toBe('');
+  });
+
   it('a header whose quote is never closed is refused with exit 2 and no output file', async () => {
     const out = join(dir, 'never.csv');
     const { run } = await batch('bad-header.csv', `id,"sbp,dbp\n${line('H1')}\n`, ['--out', out]);
