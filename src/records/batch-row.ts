@@ -75,7 +75,7 @@ export function isMissingMark(cell: string): boolean {
     case 1:
       return cell === '.' || cell === '-';
     case 2:
-      return cell === 'NA' || cell === 'na' || cell === 'Na';
+      return (cell.charCodeAt(0) | 32) === 110 && (cell.charCodeAt(1) | 32) === 97; // NA in any case
     case 3:
       return cell.toLowerCase() === 'n/a';
     default:
