@@ -317,10 +317,9 @@ function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
 /** The reason written for a record whose quotes do not pair up (records/csv-records.ts). */
 export function badRecordError(bad: BadRecord, header: readonly string[]): string {
   const name = header[bad.column - 1];
-  const shown = bad.text.length > 80 ? `${bad.text.slice(0, 80)}…` : bad.text;
   return describeProblem({
     field: `line ${bad.line}, column ${bad.column}${name !== undefined ? ` (${showValue(name.trim())})` : ''}`,
-    value: showValue(shown),
+    value: showValue(bad.text),
     reason: `a double quote opens this cell and ${bad.reason}, so the line was read as plain text and not computed; reading went on with the next line`,
     accepted: 'a quoted cell closed on the same line, or spanning lines in a record with as many cells as the header; a quote inside a quoted cell doubled ("")',
   });

@@ -15,6 +15,7 @@ import { RESULT_KEYS, type ResultKey, type Results } from '../assessment/compute
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
+import { sanitizeText } from '../text/sanitize.js';
 import { bareNumber } from '../units/quantity.js';
 import { decimalsFor, formatNumber } from './format.js';
 
@@ -53,8 +54,22 @@ export function guardCell(cell: string): string {
  */
 export function csvText(rows: readonly (readonly string[])[]): string {
   let text = '';
-  for (const row of rows) text += csvFormatRow(row.map(guardCell)) + CRLF;
+  for (const row of rows) text += csvFormatRow(row.map(safeCell)) + CRLF;
   return text;
+}
+
+/**
+ * A text cell's content before quoting: control characters other than tab and
+ * line breaks (which CSV quoting carries) made visible by the one sanitiser,
+ * so no raw ESC or C1 byte reaches a file that a terminal or spreadsheet opens.
+ */
+export function csvCellText(cell: string): string {
+  return sanitizeText(cell, { keepWhitespace: true });
+}
+
+/** A text cell as every CSV of the tool writes it: the sanitiser first, then the cell guard. */
+export function safeCell(cell: string): string {
+  return guardCell(csvCellText(cell));
 }
 
 /** Units of the result keys (docs/json-output.md); a test checks them against computed results. */
@@ -147,29 +162,31 @@ export class CsvBytes {
   }
 
   /**
-   * A text cell, through guardCell. Plain ASCII without a comma, a double
-   * quote or a line break (nearly every cell) is copied as it is, which is
-   * what d3-dsv's csvFormatValue returns for it; any other cell is quoted by
+   * A text cell. Printable ASCII without a comma or a double quote that
+   * does not begin like a formula (nearly every cell) is copied as it is,
+   * which is what d3-dsv's csvFormatValue returns for it; any other cell goes
+   * through safeCell (sanitiser, then cell guard), is quoted by
    * csvFormatValue where needed and encoded as UTF-8 by Node.
    */
-  text(text: string): void {
-    const cell = FORMULA_START[text.charCodeAt(0)] === 1 ? guardCell(text) : text;
+  text(cell: string): void {
     const n = cell.length;
     this.room(n);
     const buf = this.buf;
     const start = this.pos;
+    let plain = FORMULA_START[cell.charCodeAt(0)] !== 1;
     let p = start;
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; plain && i < n; i++) {
       const c = cell.charCodeAt(i);
-      if (c >= 0x80 || c === 34 || c === 44 || c === 10 || c === 13) {
-        const t = csvFormatValue(cell);
-        this.room(t.length * 3);
-        this.pos = start + this.buf.write(t, start, 'utf8');
-        return;
-      }
-      buf[p++] = c;
+      if (c >= 0x7f || c < 0x20 || c === 34 || c === 44) plain = false;
+      else buf[p++] = c;
     }
-    this.pos = p;
+    if (plain) {
+      this.pos = p;
+      return;
+    }
+    const t = csvFormatValue(safeCell(cell));
+    this.room(t.length * 3);
+    this.pos = start + this.buf.write(t, start, 'utf8');
   }
 
   /** The first `width` cells (missing ones empty), as text cells separated by commas. */
