@@ -7,7 +7,7 @@ import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
 import { RecordSplitter } from '../../src/records/csv-records.js';
-import { RESULT_UNITS, csvNumber, csvText } from '../../src/render/csv.js';
+import { CsvBytes, RESULT_UNITS, csvNumber, csvText, safeCell } from '../../src/render/csv.js';
 
 const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
 
@@ -129,6 +129,18 @@ describe('CSV cells', () => {
     const text = csvText(rows);
     expect(text).toBe('a,"b,c","say ""hi""","two\nlines",\r\n');
     expect(parse(text)).toEqual(rows);
+  });
+
+  it('guards formula-like text after sanitising it, the same in csvText and in the byte writer (OWASP CSV injection)', () => {
+    const cells = ['=1+1', '-2.5', '+3', '@x', '\t=1', '-', '\u001b=1', '=1\u001b', 'plain', 'a, b', ''];
+    const expected = ["'=1+1", '-2.5', '+3', "'@x", "'\t=1", "'-", '\u241b=1', "'=1\u241b", 'plain', 'a, b', ''];
+    expect(cells.map(safeCell)).toEqual(expected);
+    const text = csvText([cells]);
+    expect(parse(text)).toEqual([expected]);
+    const out = new CsvBytes();
+    out.cells(cells, cells.length);
+    out.endRow();
+    expect(new TextDecoder().decode(out.take())).toBe(text);
   });
 
   it('knows the unit of every result key (checked against computed results)', () => {
