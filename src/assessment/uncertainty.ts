@@ -192,6 +192,16 @@ function runPlanFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel
   return { graph, nominal, active };
 }
 
+/** The outputs a run computes: the stored keys, and Ea, Ees and Ea/Ees for the coupling and the method error. */
+function wantedIn(keys: readonly ResultKey[]): ResultKey[] {
+  return [...keys, 'ea', 'ees', 'eaEes'];
+}
+
+/** Draws 0…n−1 of a column into a run's single-precision store from `start` (a loop: typed-array set across types is slower). */
+function copyInto(target: Float32Array, source: Float64Array, start: number, n: number): void {
+  for (let i = 0; i < n; i++) target[start + i] = source[i]!;
+}
+
 /** Fill a drawn input's column: its value plus SD times a standard normal deviate. */
 function drawInput(column: Float64Array, value: number, sd: number, z: Float64Array, n: number): void {
   for (let i = 0; i < n; i++) column[i] = value + sd * z[i]!;
@@ -205,7 +215,7 @@ function drawInput(column: Float64Array, value: number, sd: number, z: Float64Ar
  */
 function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys: readonly ResultKey[], method: { ea: number | null; calibrated: number } | null): Simulation {
   const { active, nominal } = plan;
-  const program = compileDraws(plan.graph, nominal, active.map((a) => a.input), [...keys, 'ea', 'ees', 'eaEes'], CHUNK);
+  const program = compileDraws(plan.graph, nominal, active.map((a) => a.input), wantedIn(keys), CHUNK);
   const columns = active.map((a) => program.input(a.input));
   const values = new Map<ResultKey, Float32Array>(keys.map((k) => [k, new Float32Array(draws)]));
   const stored = [...values].map(([key, target]) => ({ target, source: program.output(key) }));
@@ -231,7 +241,7 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
     }
     program.run(n);
     program.countLosses('ees', n, sim.eesLosses);
-    for (const { target, source } of stored) target.set(n === CHUNK ? source : source.subarray(0, n), start);
+    for (const { target, source } of stored) copyInto(target, source, start, n);
     for (let i = 0; i < n; i++) {
       const ratio = ratioColumn[i]!;
       if (ratio - ratio === 0) {
@@ -250,27 +260,31 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
 /** The method error of draws start … start + n − 1 (see simulate). */
 function methodErrorChunk(sim: Simulation, method: { ea: number | null; calibrated: number }, ea: Float64Array, ees: Float64Array, w: Float64Array, start: number, n: number): void {
   const { slope, intercept, see } = CHEN_CALIBRATION;
-  const { onlyEes, onlyEaEes, combinedEes, combinedEaEes } = sim as Required<{ [K in keyof Simulation]: NonNullable<Simulation[K]> }> & Simulation;
+  // simulate allocates these three whenever there is a method error to draw.
+  const onlyEes = sim.onlyEes!;
+  const combinedEes = sim.combinedEes!;
+  const combinedEaEes = sim.combinedEaEes!;
+  const onlyEaEes = sim.onlyEaEes;
   const ea0 = method.ea ?? Number.NaN;
   const calibrated = method.calibrated;
   for (let i = 0; i < n; i++) {
     const d = start + i;
     const onlyInvasive = calibrated + see * w[i]!;
-    onlyEes![d] = onlyInvasive;
+    onlyEes[d] = onlyInvasive;
     if (onlyEaEes !== null) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
     const e = ees[i]!;
     if (e - e === 0) {
       const invasive = slope * e + intercept + see * w[i]!;
-      combinedEes![d] = invasive;
+      combinedEes[d] = invasive;
       if (invasive > 0) {
         const r = ea[i]! / invasive;
-        combinedEaEes![d] = r;
+        combinedEaEes[d] = r;
         sim.combinedCount++;
         if (r > COUPLING_CUTOFF) sim.aboveCombined++;
-      } else combinedEaEes![d] = Number.NaN;
+      } else combinedEaEes[d] = Number.NaN;
     } else {
-      combinedEes![d] = Number.NaN;
-      combinedEaEes![d] = Number.NaN;
+      combinedEes[d] = Number.NaN;
+      combinedEaEes[d] = Number.NaN;
     }
   }
 }
@@ -284,20 +298,24 @@ function intervalOf(src: Float32Array | null, scratch: Float64Array): [number, n
 /**
  * Variance of each sensitivity key with only one input varying, over the same
  * deviates as the main run. Only the inputs the keys depend on (the graph's
- * edges) are run; the others' share is exactly zero.
+ * edges) are run; the others' share is exactly zero. The program is the main
+ * run's (same inputs drawn, same outputs), with every drawn input but one held
+ * at the visit's value: its compiled form is already warm.
  */
-function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: readonly SensitivityKey[]): Map<ErrorInputKey, Float64Array> {
+function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: readonly SensitivityKey[], wanted: readonly ResultKey[]): Map<ErrorInputKey, Float64Array> {
   const { graph, nominal, active } = plan;
   const reaching = new Set(keys.flatMap((k) => inputsOf(graph, k)));
+  const program = compileDraws(graph, nominal, active.map((a) => a.input), wanted, CHUNK);
+  const hold = (input: ErrorInputKey) => program.input(input).fill(nominal[slotOf(input)]!);
+  for (const { input } of active) hold(input);
   const z = new Float64Array(CHUNK);
   const result = new Map<ErrorInputKey, Float64Array>();
   const streams = randomStreams(seed, STREAM_COUNT);
+  const outputs = keys.map((k) => program.output(k));
+  const centres = keys.map((k) => nominal[slotOf(k)]!);
   for (const { input, stream, sd } of active) {
     if (!reaching.has(input)) continue;
-    const program = compileDraws(graph, nominal, [input], keys, CHUNK);
     const column = program.input(input);
-    const outputs = keys.map((k) => program.output(k));
-    const centres = keys.map((k) => nominal[slotOf(k)]!);
     const count = new Float64Array(keys.length);
     const sum = new Float64Array(keys.length);
     const sumSq = new Float64Array(keys.length);
@@ -306,25 +324,33 @@ function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: re
       fillNormals(streams[stream]!, z, n);
       drawInput(column, nominal[slotOf(input)]!, sd, z, n);
       program.run(n);
-      for (let q = 0; q < keys.length; q++) {
-        const out = outputs[q]!;
-        const centre = centres[q]!;
-        for (let i = 0; i < n; i++) {
-          const v = out[i]!;
-          if (v - v === 0) {
-            const dv = v - centre;
-            count[q]!++;
-            sum[q]! += dv;
-            sumSq[q]! += dv * dv;
-          }
-        }
-      }
+      for (let q = 0; q < keys.length; q++) accumulate(outputs[q]!, centres[q]!, n, q, count, sum, sumSq);
     }
+    hold(input);
     const variance = new Float64Array(keys.length);
     for (let q = 0; q < keys.length; q++) variance[q] = sampleVariance(count[q]!, sum[q]!, sumSq[q]!);
     result.set(input, variance);
   }
   return result;
+}
+
+/** Count, sum and sum of squares of the finite deviations from `centre` in draws 0…n−1 of a column, into position q. */
+function accumulate(out: Float64Array, centre: number, n: number, q: number, count: Float64Array, sum: Float64Array, sumSq: Float64Array): void {
+  let c = 0;
+  let s1 = 0;
+  let s2 = 0;
+  for (let i = 0; i < n; i++) {
+    const v = out[i]!;
+    if (v - v === 0) {
+      const dv = v - centre;
+      c++;
+      s1 += dv;
+      s2 += dv * dv;
+    }
+  }
+  count[q]! += c;
+  sum[q]! += s1;
+  sumSq[q]! += s2;
 }
 
 
@@ -407,7 +433,7 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
   const additivity: Partial<Record<SensitivityKey, number>> = {};
   const drawsPerInput = Math.min(draws, SENSITIVITY_DRAWS);
   if (options.sensitivity !== false) {
-    const perInput = oneAtATime(plan, seed, drawsPerInput, SENSITIVITY_KEYS);
+    const perInput = oneAtATime(plan, seed, drawsPerInput, SENSITIVITY_KEYS, wantedIn(keys));
     SENSITIVITY_KEYS.forEach((key, q) => {
       if (!outputs[key]) return;
       const list = model.inputs.filter((e) => e.sd > 0 && perInput.has(e.input)).map((e) => ({ input: e.input, variance: perInput.get(e.input)![q]! }));

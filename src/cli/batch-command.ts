@@ -9,21 +9,21 @@
  * megabyte or more is shared with worker threads (batch-worker.ts; one fewer
  * than the cores, at most three): a piece goes to a worker that has room, or
  * is computed on the main thread meanwhile. A bad row gets its reason in the
- * error column and the run goes on. `--out` goes to a temporary file beside
- * the target (mode 0600), fsynced and renamed over the target only when the
- * whole run succeeded. Progress goes to stderr, on a terminal only.
+ * error column and the run goes on. `--out` goes through io/safe-write.ts:
+ * a temporary file beside the target (mode 0600), fsynced and renamed over
+ * the target only when the whole run succeeded. Progress goes to stderr, on a terminal only.
  */
 import { availableParallelism } from 'node:os';
-import { closeSync, createReadStream, createWriteStream, fstatSync, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
-import { basename, dirname, join, resolve } from 'node:path';
+import { createWriteStream } from 'node:fs';
 import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
-import { FILE_MODE } from '../records/file-mode.js';
+import { BATCH_FILE, openInputStream } from '../io/read-input.js';
 import { info } from './messages.js';
-import { checkOutputPath } from './output-files.js';
-import { BatchSheet, RecordPieces } from '../records/batch-row.js';
+import { beginSafeWrite, checkOutputPath, writeFault, type SafeWrite } from '../io/safe-write.js';
+import { BatchSheet } from '../records/batch-row.js';
+import { HeaderQuoteError, MAX_RECORD, RecordSplitter, RecordTooLongError, type Segment } from '../records/csv-records.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
 
@@ -37,12 +37,6 @@ const MAX_WORKERS = 3;
 const WORKER_DEPTH = 3;
 /** Pieces computed or under way but not yet written: the bound on memory. */
 const MAX_PENDING = 16;
-
-function openProblem(path: string, err: unknown, field: string): InputError {
-  const code = (err as NodeJS.ErrnoException).code;
-  const reason = code === 'ENOENT' ? 'file or folder not found' : code === 'EISDIR' ? 'is a folder' : code === 'EACCES' ? 'permission denied' : `cannot be opened (${code ?? 'error'})`;
-  return new InputError({ field, value: showValue(path), reason, accepted: field === 'out' ? 'a file path in an existing folder you can write to' : 'a readable CSV file with a header row (docs/batch.md)' });
-}
 
 function write(stream: Writable, bytes: Uint8Array): Promise<void> {
   if (bytes.length === 0) return Promise.resolve();
@@ -62,21 +56,17 @@ function write(stream: Writable, bytes: Uint8Array): Promise<void> {
 function finish(stream: Writable): Promise<void> {
   return new Promise<void>((ok, fail) => {
     stream.once('error', fail);
-    stream.end(() => ok());
+    // A write that failed after it was buffered (a full disk) surfaces here, not at write().
+    stream.end((err?: Error | null) => (err ? fail(err) : ok()));
   });
 }
 
-function fsyncFile(path: string): void {
-  const fd = openSync(path, 'r');
-  try {
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
-  }
-}
-
 export interface BatchCounts {
-  rows: number;
+  /** Records read after the header. */
+  read: number;
+  /** Rows the output accepted. */
+  written: number;
+  /** Rows written with an error. */
   failed: number;
 }
 
@@ -127,8 +117,7 @@ class PieceWorker {
   }
 
   /** The input's header, before the first piece. */
-  header(header: string[]): void {
-    const message: HeaderMessage = { header };
+  header(message: HeaderMessage): void {
     this.worker.postMessage(message);
     this.hasHeader = true;
   }
@@ -161,123 +150,131 @@ function workerCount(sizeBytes: number): number {
  * The whole run against an opened input and output; returns the counts.
  * Pieces are written in input order whichever thread computed them.
  */
-async function streamRows(input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
-  const pieces = new RecordPieces();
-  const sheet = new BatchSheet(); // this thread's: reads the header, and computes pieces no worker has room for
+async function streamRows(inPath: string, input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
+  const splitter = new RecordSplitter();
+  let sheet: BatchSheet | undefined; // this thread's: reads the header, and computes pieces no worker has room for
   // Started before the first read, so they load while this thread reads the header and the first rows.
   const pool: PieceWorker[] = Array.from({ length: workers }, () => new PieceWorker());
   const slots: Slot[] = [];
   let seq = 0;
-  let rows = 0;
+  let read = 0;
+  let written = 0;
   let failed = 0;
   let started = false;
 
   const writeFirst = async () => {
     const slot = slots.shift()!;
     const done = slot.result ?? (await slot.settled);
-    rows += done.rows;
+    read += done.rows;
     failed += done.failed;
     await write(output, done.bytes);
-    onProgress(rows);
+    written += done.rows;
+    onProgress(written);
   };
 
-  const submit = async (text: string) => {
-    if (text === '') return;
-    const broken = pool.find((w) => w.failure !== undefined);
-    if (broken) throw broken.failure;
-    const worker = sheet.layout ? pool.find((w) => w.hasRoom()) : undefined;
-    if (worker) {
-      const slot: Slot = { result: undefined, settled: worker.run(seq++, text) };
-      slot.settled.then((c) => (slot.result = c), () => undefined);
-      slots.push(slot);
+  const here = (compute: (s: BatchSheet) => Uint8Array) => {
+    const s = (sheet ??= new BatchSheet(undefined, splitter.dialect));
+    const before = { rows: s.rows, failed: s.failed };
+    const bytes = compute(s);
+    const result = { bytes, rows: s.rows - before.rows, failed: s.failed - before.failed };
+    slots.push({ result, settled: Promise.resolve(result) });
+    seq++;
+    if (s.layout && !started) {
+      // The header has been read: tell the workers.
+      started = true;
+      for (const w of pool) w.header({ header: s.layout.header, dialect: s.layout.dialect });
+    }
+  };
+
+  const submit = async (segment: Segment) => {
+    if (segment.bad) {
+      here((s) => s.bad(segment.bad));
     } else {
-      const before = { rows: sheet.rows, failed: sheet.failed };
-      const bytes = sheet.piece(text);
-      const result = { bytes, rows: sheet.rows - before.rows, failed: sheet.failed - before.failed };
-      slots.push({ result, settled: Promise.resolve(result) });
-      seq++;
-      if (sheet.layout && !started) {
-        // The header has been read: say how clashing result columns are named, and tell the workers.
-        started = true;
-        for (const w of pool) w.header(sheet.layout.header);
-      }
+      const text = segment.text;
+      const broken = pool.find((w) => w.failure !== undefined);
+      if (broken) throw broken.failure;
+      const worker = sheet?.layout ? pool.find((w) => w.hasRoom()) : undefined;
+      if (worker) {
+        const slot: Slot = { result: undefined, settled: worker.run(seq++, text) };
+        slot.settled.then((c) => (slot.result = c), () => undefined);
+        slots.push(slot);
+      } else here((s) => s.piece(text));
     }
     while (slots.length > 0 && (slots[0]!.result !== undefined || slots.length >= MAX_PENDING)) await writeFirst();
   };
 
   try {
-    for await (const chunk of input) await submit(pieces.push(chunk));
-    await submit(pieces.end());
+    for await (const chunk of input) for (const segment of splitter.push(chunk)) await submit(segment);
+    for (const segment of splitter.end()) await submit(segment);
     while (slots.length > 0) await writeFirst();
     const broken = pool.find((w) => w.failure !== undefined);
     if (broken) throw broken.failure;
+  } catch (err) {
+    if (err instanceof HeaderQuoteError) {
+      throw new InputError({ field: `header, line ${err.bad.line}, column ${err.bad.column}`, value: showValue(err.bad.text), reason: `a double quote opens this column name and ${err.bad.reason}`, accepted: 'a header row whose quoted names are closed (docs/batch.md)' });
+    }
+    if (err instanceof RecordTooLongError) {
+      throw new InputError({ field: `batch file, line ${err.line}`, value: showValue(inPath), reason: `a record runs on for more than ${MAX_RECORD} characters without a line break`, accepted: 'a CSV file with a header row and one visit per record (docs/batch.md)' });
+    }
+    throw err;
   } finally {
     await Promise.all(pool.map((w) => w.close()));
   }
-  return { rows, failed, header: sheet.layout !== undefined };
+  return { read, written, failed, header: sheet?.layout !== undefined };
 }
 
 export async function runBatch(inPath: string, opts: Record<string, unknown>): Promise<void> {
-  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, { option: 'out', extensions: [], protect: [inPath] }) : undefined;
+  const outRule = { option: 'out', inputs: [inPath] };
+  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, outRule) : undefined;
   const showProgress = Boolean(process.stderr.isTTY);
-  const tempPath = outPath ? join(dirname(outPath), `.${basename(outPath)}.${process.pid}.tmp`) : undefined;
 
-  const input = createReadStream(inPath, { highWaterMark: CHUNK_BYTES, encoding: 'utf8' });
-  const inputFd = await new Promise<number>((ok, fail) => {
-    input.once('open', (fd) => ok(fd));
-    input.once('error', (err) => fail(openProblem(inPath, err, 'batch file')));
-  });
-  const inputStat = fstatSync(inputFd);
-  if (inputStat.isDirectory()) {
-    input.destroy();
-    throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'is a folder', accepted: 'a readable CSV file with a header row (docs/batch.md)' });
-  }
-  const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
+  // The one input reader: a regular file (or `-`, standard input) within the batch limit, checked before
+  // a byte is read, so a folder, a FIFO or /dev/zero is refused at once.
+  const input = openInputStream(inPath, BATCH_FILE, CHUNK_BYTES);
+  const workers = workerCount(input.size ?? 0);
 
   let output: Writable = process.stdout;
-  if (tempPath) {
-    const file = createWriteStream(tempPath, { mode: FILE_MODE, flags: 'wx', highWaterMark: CHUNK_BYTES });
-    await new Promise<void>((ok, fail) => {
-      file.once('open', () => ok());
-      file.once('error', (err) => fail(openProblem(String(opts.out), err, 'out')));
-    });
+  let safe: SafeWrite | undefined;
+  let outputFailure: Error | undefined;
+  if (outPath) {
+    try {
+      safe = beginSafeWrite(String(opts.out), outRule);
+    } catch (err) {
+      input.close();
+      throw err;
+    }
+    const file = createWriteStream('', { fd: safe.fd, autoClose: false, highWaterMark: CHUNK_BYTES });
+    file.on('error', (err) => (outputFailure = err));
     output = file;
   }
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input as AsyncIterable<string>, output, workers, (rows) => {
+    counts = await streamRows(inPath, input.chunks, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
     if (!counts.header) {
       throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'empty', accepted: 'a CSV file with a header row and one row per visit (docs/batch.md)' });
     }
-    if (tempPath && outPath) {
+    if (safe) {
       await finish(output);
-      fsyncFile(tempPath);
-      renameSync(tempPath, outPath);
-      fsyncDirectory(dirname(outPath));
+      if (outputFailure) throw outputFailure;
+      safe.commit();
     }
   } catch (err) {
-    input.destroy();
+    input.close();
     // The reader of standard output went away (e.g. `| head`): stop quietly, as Unix tools do.
-    if (!tempPath && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
-    if (tempPath) {
+    if (!safe && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
+    if (safe) {
       output.destroy();
-      rmSync(tempPath, { force: true });
+      safe.abort();
+      if (err === outputFailure) throw writeFault(String(opts.out), err, safe.existed);
     }
     throw err;
   }
   if (showProgress) process.stderr.write('\r');
   if (showProgress || counts.failed > 0 || outPath) {
-    info(`${counts.rows} row(s), ${counts.failed} with an error (see the error column); methods ${METHODS_VERSION}${outPath ? `; wrote ${opts.out}` : ''}`);
+    info(`${counts.read} record(s) read, ${counts.written} written, ${counts.failed} with an error (see the error column); methods ${METHODS_VERSION}${outPath ? `; wrote ${opts.out}` : ''}`);
   }
 }
 
-function fsyncDirectory(path: string): void {
-  try {
-    fsyncFile(path);
-  } catch {
-    // Some file systems refuse fsync on a folder; the rename itself is atomic.
-  }
-}

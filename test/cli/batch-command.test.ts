@@ -44,7 +44,9 @@ describe('batch', () => {
   it('keeps the input columns and adds one column per result key named as the JSON keys, then flags, reasons, methods version and error', () => {
     const header = parse(run.stdout, { to_line: 1 })[0] as string[];
     // The input has an `ef` column (EF as reported); the EF used is the result `efUsed`, so no name is shared.
-    expect(header).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
+    // Then the numeric inputs as used (suffix Used, in the order of docs/batch.md's table).
+    const used = ['sbpUsed', 'dbpUsed', 'hrUsed', 'edvUsed', 'esvUsed', 'efUsed', 'pepUsed', 'etUsed'].filter((u) => !RESULT_KEYS.includes(u as never));
+    expect(header).toEqual([...HEADER, ...used, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
     expect(rows.map((r) => r.participant)).toEqual(['HT-101', 'HT-102', 'HT-103', 'HT-104']);
     expect(rows[0]!.comment).toBe('baseline, fasting');
     expect(rows[2]!.comment).toBe('says "units"\nover two lines');
@@ -65,7 +67,7 @@ describe('batch', () => {
     expect(rows[1]!.error).toBe('dbp: got 130; not below SBP 120 mmHg; accepted: DBP lower than SBP');
     expect(rows[1]!.ea).toBe('');
     expect(rows[2]!.error).toBe('');
-    expect(run.stderr).toMatch(/4 row\(s\), 1 with an error/);
+    expect(run.stderr).toMatch(/4 record\(s\) read, 4 written, 1 with an error/);
   });
 
   it('converts values with units and averages several readings', () => {
@@ -103,8 +105,8 @@ describe('batch', () => {
 
   it('refuses, with exit 2, a missing file, an empty one, a header without measurement columns, and the input as output', async () => {
     const refusals: [string[], RegExp][] = [
-      [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file or folder not found/],
-      [['batch', input, '--out', input], /out: got .*; this is an input file and would be overwritten/],
+      [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file not found/],
+      [['batch', input, '--out', input], /out: got .*; this is a file the command reads and would be overwritten/],
     ];
     const empty = join(dir, 'empty.csv');
     writeFileSync(empty, '');
@@ -144,7 +146,7 @@ describe('batch: folders and empty paths are input errors, not crashes', () => {
     expect(asInput.stderr).toMatch(/batch file: got ".*"; is a folder; accepted: a readable CSV file/);
     const asOut = run('cases/hypertension-cohort.csv', '--out', folder);
     expect(asOut.status).toBe(2);
-    expect(asOut.stderr).toMatch(/out: got ".*"; exists and is not a regular file/);
+    expect(asOut.stderr).toMatch(/out: got ".*"; is a folder; it is never written through or replaced/);
     const empty = run('cases/hypertension-cohort.csv', '--out', '');
     expect(empty.status).toBe(2);
     expect(empty.stderr).toMatch(/out: got ""; accepted: a file path in an existing folder/);

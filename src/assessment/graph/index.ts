@@ -6,7 +6,7 @@
  */
 import type { PesMethod } from '../fields.js';
 import type { VisitInputs } from '../inputs.js';
-import { planFor, presentInputs, resultsOf, type Plan, type Results } from './plan.js';
+import { planForInputs, resultsFor, type Plan, type Results } from './plan.js';
 import { NODES, type ResultKey } from './registry.js';
 import type { Rule, Selection, StrokeVolumeSource } from './types.js';
 
@@ -28,19 +28,19 @@ export function selectionFor(inputs: VisitInputs, choice: MethodChoice): Selecti
 }
 
 /** The plan of a visit under a method choice (default: the visit's own). */
-export function visitPlan(inputs: VisitInputs, choice: MethodChoice = defaultChoice(inputs)): Plan {
-  return planFor(presentInputs(inputs), selectionFor(inputs, choice));
+export function visitPlan(inputs: VisitInputs, choice?: MethodChoice): Plan {
+  // Without a choice: Doppler SV preferred, which the SV node's rules turn into the volumes when there is none (defaultChoice).
+  return planForInputs(inputs, selectionFor(inputs, choice ?? { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler' }));
 }
 
 /** Default method choice: the inputs' Pes method, Doppler SV when given (as in Chen 2001). */
 export function defaultChoice(inputs: VisitInputs): MethodChoice {
-  const doppler = planFor(presentInputs(inputs), selectionFor(inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler' }));
-  return { pesMethod: inputs.pesMethod, strokeVolumeSource: doppler.nodes[nodeIndex('svDoppler')]!.rule ? 'doppler' : 'volumetric' };
+  return { pesMethod: inputs.pesMethod, strokeVolumeSource: visitPlan(inputs).nodes[SV_DOPPLER]!.rule ? 'doppler' : 'volumetric' };
 }
 
 /** Every result of one visit under a method choice. */
-export function computeResults(inputs: VisitInputs, choice: MethodChoice = defaultChoice(inputs)): Results {
-  return resultsOf(visitPlan(inputs, choice), inputs);
+export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Results {
+  return resultsFor(inputs, selectionFor(inputs, choice ?? { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler' }));
 }
 
 /** Whether the visit has a Doppler stroke volume (entered, or from LVOT diameter and VTI). */
@@ -51,6 +51,8 @@ export function hasDopplerStrokeVolume(inputs: VisitInputs): boolean {
 function nodeIndex(key: string): number {
   return NODES.findIndex((n) => n.key === key);
 }
+
+const SV_DOPPLER = nodeIndex('svDoppler');
 
 /** The method text of Pes under each estimate (the pes node's rules). */
 export const PES_METHOD_LABEL: Record<PesMethod, string> = (() => {

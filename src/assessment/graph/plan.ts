@@ -4,7 +4,7 @@
  * and the evaluation of a plan over a vector of values. Slots of the value
  * vector: the inputs in GRAPH_INPUTS order, then the nodes in NODES order.
  */
-import type { NumericKey } from '../fields.js';
+import { BSA_METHODS, MAP_METHODS, PES_METHODS, type NumericKey } from '../fields.js';
 import type { Quantity } from '../result.js';
 import { quantity } from '../result.js';
 import { GRAPH_INPUTS, GRAPH_INPUT_KEYS, type GraphInputKey } from './inputs.js';
@@ -134,22 +134,58 @@ function buildPlan(present: readonly boolean[], selection: Selection): Plan {
   return { selection, present, nodes, order: TOPOLOGICAL.map((i) => nodes[i]!).filter((p) => p.rule !== null) };
 }
 
-const plans = new Map<string, Plan>();
+const plans = new Map<number, Plan>();
+/** Every value of each method choice: a new choice is a field of Selection and a line here (the type checker asks for it). */
+const SELECTION_VALUES: { readonly [K in keyof Selection]: readonly Selection[K][] } = {
+  pesMethod: PES_METHODS,
+  strokeVolumeSource: ['doppler', 'volumetric'],
+  mapMethod: MAP_METHODS,
+  bsaMethod: BSA_METHODS,
+};
+const SELECTION_KEYS = Object.keys(SELECTION_VALUES) as (keyof Selection)[];
 
-/** The plan for a visit with these inputs present (by GRAPH_INPUTS slot) under these choices. */
-export function planFor(present: readonly boolean[], selection: Selection): Plan {
-  let id = `${selection.pesMethod}|${selection.strokeVolumeSource}|${selection.mapMethod}|${selection.bsaMethod}|`;
-  for (let i = 0; i < INPUT_COUNT; i++) id += present[i] ? '1' : '0';
-  let plan = plans.get(id);
+/** A number naming the selection and the inputs present (mixed radix): the plan cache's key (a cohort has few patterns). */
+function planCode(presentMask: number, selection: Selection): number {
+  let code = presentMask;
+  for (const k of SELECTION_KEYS) {
+    const values = SELECTION_VALUES[k] as readonly string[];
+    code = code * values.length + values.indexOf(selection[k]);
+  }
+  return code;
+}
+
+function planByCode(code: number, present: () => boolean[], selection: Selection): Plan {
+  let plan = plans.get(code);
   if (!plan) {
-    plan = buildPlan([...present], selection);
-    plans.set(id, plan);
+    plan = buildPlan(present(), selection);
+    plans.set(code, plan);
   }
   return plan;
 }
 
+/** The plan for a visit's inputs under these choices. */
+export function planForInputs(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
+  return planByCode(planCode(readInputs(inputs, scratchValues), selection), () => presentInputs(inputs), selection);
+}
+
+type InputReader = (inputs: Readonly<Record<NumericKey, number | null>>, v: Float64Array) => number;
+
+/**
+ * Copy a visit's graph inputs into slots 0… of `v` (NaN when absent) and
+ * return the mask of those present (bit i: input i). Generated once from the
+ * input keys (plain identifiers of our own), as property reads by name are
+ * much faster than reads by a key that changes on every step of a loop.
+ */
+const readInputs: InputReader = (() => {
+  const body = GRAPH_INPUT_KEYS.map((k, i) => {
+    if (!/^[A-Za-z][A-Za-z0-9]*$/.test(k)) throw new Error(`input key ${k} is not a plain identifier`);
+    return `x = inputs.${k}; if (x === null || x === undefined) v[${i}] = NaN; else { v[${i}] = x; mask += ${2 ** i}; }`;
+  });
+  return new Function('inputs', 'v', `let mask = 0; let x;\n${body.join('\n')}\nreturn mask;`) as InputReader;
+})();
+
 /** Which graph inputs a visit has. */
-export function presentInputs(inputs: Readonly<Record<NumericKey, number | null>>): boolean[] {
+function presentInputs(inputs: Readonly<Record<NumericKey, number | null>>): boolean[] {
   const present = new Array<boolean>(INPUT_COUNT);
   for (let i = 0; i < INPUT_COUNT; i++) present[i] = inputs[GRAPH_INPUT_KEYS[i]!] !== null;
   return present;
@@ -157,74 +193,90 @@ export function presentInputs(inputs: Readonly<Record<NumericKey, number | null>
 
 /** A value vector with the visit's inputs filled in (NaN where absent) and the nodes still NaN. */
 export function inputVector(inputs: Readonly<Record<NumericKey, number | null>>, into = new Float64Array(SLOT_COUNT)): Float64Array {
-  for (let i = 0; i < INPUT_COUNT; i++) into[i] = inputs[GRAPH_INPUT_KEYS[i]!] ?? Number.NaN;
-  for (let i = INPUT_COUNT; i < SLOT_COUNT; i++) into[i] = Number.NaN;
+  readInputs(inputs, into);
+  into.fill(Number.NaN, INPUT_COUNT);
   return into;
 }
 
-/** Call a rule's function with the values in `args` slots of `v`. */
-export function callRule(compute: Rule['compute'], args: readonly number[], v: Float64Array): RuleValue {
-  switch (args.length) {
-    case 1:
-      return compute(v[args[0]!]!);
-    case 2:
-      return compute(v[args[0]!]!, v[args[1]!]!);
-    case 3:
-      return compute(v[args[0]!]!, v[args[1]!]!, v[args[2]!]!);
-    case 4:
-      return compute(v[args[0]!]!, v[args[1]!]!, v[args[2]!]!, v[args[3]!]!);
-    default:
-      return compute(...args.map((s) => v[s]!));
-  }
-}
+
+type Evaluator = (v: Float64Array, reasons: (string | undefined)[]) => void;
+const evaluators = new WeakMap<Plan, Evaluator>();
 
 /**
  * Evaluate a plan over `v` (inputs filled in): each node's value into its
  * slot, NaN where not computable, with the reason in `reasons`. A node whose
- * argument is not computable is not computed and carries that argument's reason.
+ * argument is not computable is not computed and carries that argument's
+ * reason. The plan is compiled once into straight-line code that calls each
+ * rule's function directly (as draws.ts does for the Monte Carlo draws): a
+ * cohort evaluates it a hundred thousand times.
  */
 export function evaluatePlan(plan: Plan, v: Float64Array, reasons: (string | undefined)[]): void {
-  for (const p of plan.nodes) if (p.rule === null) reasons[p.slot] = p.reason;
-  for (const p of plan.order) {
-    const args = p.args;
-    let missing = -1;
-    for (let k = 0; k < args.length; k++) {
-      const x = v[args[k]!]!;
-      if (x - x !== 0) {
-        missing = args[k]!;
-        break;
-      }
-    }
-    if (missing >= 0) {
-      v[p.slot] = Number.NaN;
-      reasons[p.slot] = reasons[missing] ?? 'not computable';
-      continue;
-    }
-    const r = callRule(p.rule!.compute, args, v);
-    if (typeof r === 'number') {
-      v[p.slot] = r;
-      reasons[p.slot] = r - r === 0 ? undefined : 'not a finite number';
-    } else {
-      v[p.slot] = r.value ?? Number.NaN;
-      reasons[p.slot] = r.reason;
-    }
+  let evaluate = evaluators.get(plan);
+  if (!evaluate) {
+    evaluate = compileEvaluator(plan);
+    evaluators.set(plan, evaluate);
   }
+  evaluate(v, reasons);
+}
+
+function compileEvaluator(plan: Plan): Evaluator {
+  const functions: Rule['compute'][] = [];
+  const staticReasons: (string | undefined)[] = [];
+  const lines: string[] = [];
+  for (const p of plan.nodes) {
+    if (p.rule !== null) continue;
+    staticReasons[p.slot] = p.reason;
+    lines.push(`v[${p.slot}] = NaN; reasons[${p.slot}] = R[${p.slot}];`);
+  }
+  for (const p of plan.order) {
+    const f = functions.length;
+    functions.push(p.rule!.compute);
+    const s = p.slot;
+    // Inputs a rule reads are present (the plan chose it so); only nodes can be lost at run time.
+    const guards = p.args.filter((a) => a >= INPUT_COUNT).map((a) => `if (v[${a}] - v[${a}] !== 0) { v[${s}] = NaN; reasons[${s}] = reasons[${a}] ?? 'not computable'; }`);
+    const call = `{ const r = F[${f}](${p.args.map((a) => `v[${a}]`).join(', ')}); if (typeof r === 'number') { v[${s}] = r; reasons[${s}] = r - r === 0 ? undefined : 'not a finite number'; } else { v[${s}] = r.value ?? NaN; reasons[${s}] = r.reason; } }`;
+    lines.push(guards.length ? `${guards.join(' else ')} else ${call}` : call);
+  }
+  // The text holds slot numbers only; functions and reasons are passed in.
+  const factory = new Function('F', 'R', `return function evaluate(v, reasons) {\n${lines.join('\n')}\n};`) as (f: Rule['compute'][], r: (string | undefined)[]) => Evaluator;
+  return factory(functions, staticReasons);
 }
 
 const scratchValues = new Float64Array(SLOT_COUNT);
 const scratchReasons: (string | undefined)[] = new Array<string | undefined>(SLOT_COUNT);
 
-/** Every result of a plan for these inputs, with unit, method and (when not computable) reason, in NODES order. */
-export function resultsOf(plan: Plan, inputs: Readonly<Record<NumericKey, number | null>>): Results {
-  const v = inputVector(inputs, scratchValues);
-  evaluatePlan(plan, v, scratchReasons);
-  const results = {} as Results;
-  for (const p of plan.nodes) {
-    const x = v[p.slot]!;
-    results[p.key] = quantity(x - x === 0 ? x : null, p.unit, p.method, scratchReasons[p.slot]);
-  }
-  return results;
+/** Every result of a visit's inputs under these choices (planForInputs and resultsOf in one pass over the inputs). */
+export function resultsFor(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Results {
+  const v = scratchValues;
+  const plan = planByCode(planCode(readInputs(inputs, v), selection), () => presentInputs(inputs), selection);
+  v.fill(Number.NaN, INPUT_COUNT);
+  return resultsFrom(plan, v);
 }
+
+function resultsFrom(plan: Plan, v: Float64Array): Results {
+  evaluatePlan(plan, v, scratchReasons);
+  const list = scratchQuantities;
+  const nodes = plan.nodes;
+  for (let i = 0; i < NODE_COUNT; i++) {
+    const p = nodes[i]!;
+    const x = v[p.slot]!;
+    list[i] = quantity(x - x === 0 ? x : null, p.unit, p.method, scratchReasons[p.slot]);
+  }
+  return resultsLiteral(list);
+}
+
+const scratchQuantities = new Array<Quantity>(NODE_COUNT);
+
+/**
+ * The results object written as one literal with the keys in NODES order:
+ * a cohort makes a hundred thousand of these, and a literal is far cheaper
+ * than adding keys one by one. Generated from the registry's keys (checked
+ * to be plain identifiers), never from user data.
+ */
+const resultsLiteral = ((): ((q: readonly Quantity[]) => Results) => {
+  for (const k of RESULT_KEYS) if (!/^[A-Za-z][A-Za-z0-9]*$/.test(k)) throw new Error(`result key ${k} is not a plain identifier`);
+  return new Function('q', `return { ${RESULT_KEYS.map((k, i) => `${k}: q[${i}]`).join(', ')} };`) as (q: readonly Quantity[]) => Results;
+})();
 
 /** The input and node slots a node's value depends on under a plan (its closure, the node itself excluded), inputs first, then nodes in evaluation order. */
 export function dependencies(plan: Plan, key: ResultKey): number[] {
