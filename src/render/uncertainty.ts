@@ -109,6 +109,7 @@ export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: 
   lines.push(`  ${pad('Ees', 8)}${shareList(report.sensitivity.ees)}`);
   lines.push(`  ${pad('Ea/Ees', 8)}${shareList(report.sensitivity.eaEes)}`);
   lines.push(`  ${pad('Ea', 8)}${shareList(report.sensitivity.ea)}`);
+  if (report.sensitivity.tapsePasp.length) lines.push(`  ${pad('TAPSE/PASP', 8)}  ${shareList(report.sensitivity.tapsePasp)}`);
   lines.push(s.strong(driverAdvice(report)));
   lines.push(s.strong('Error model (SD of each input as used; override with --error input=value or "errors" in a visit file):'));
   for (const spec of report.errorModel) {
