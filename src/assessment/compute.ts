@@ -37,7 +37,7 @@ export type ResultKey = (typeof RESULT_KEYS)[number];
 export type Results = Record<ResultKey, Quantity>;
 
 export const PES_METHOD_LABEL: Record<PesMethod, string> = {
-  sbp90: '0.9 × brachial SBP (Kelly 1992)',
+  sbp90: '0.9 × brachial SBP (factor as stated in Chen 2001)',
   weighted: '(2·SBP + DBP)/3 (literature estimate, source unverified)',
   measured: 'measured value, passed through',
 };

@@ -4,8 +4,9 @@ import { computed, notComputable, type Outcome } from './outcome.js';
  * Group-averaged normalized elastance at the onset of ejection:
  * ENd(avg) = Σ aᵢ · tNdⁱ, i = 0…7  (dimensionless), with
  * a = 0.35695, −7.2266, 74.249, −307.39, 684.54, −856.92, 571.95, −159.1.
- * Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034 (coefficients as recorded
- * in the project's method notes; see docs/methods.md for their provenance).
+ * Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034. The coefficients are as
+ * quoted by two independent secondary implementations that cite Chen 2001; the
+ * paper's own table was not read (docs/methods-verification.md §1).
  * Worked example (computed here): tNd 0.23684 → 0.33614.
  */
 export const NORMALIZED_ELASTANCE_COEFFICIENTS = [0.35695, -7.2266, 74.249, -307.39, 684.54, -856.92, 571.95, -159.1] as const;
