@@ -36,7 +36,9 @@ export function normalizedElastanceAverage(tNd: number): Outcome {
 /**
  * Subject-specific normalized elastance at the onset of ejection:
  * ENd(est) = 0.0275 − 0.165·EF + 0.3656·(DBP / Pes) + 0.515·ENd(avg)
- * (EF as a fraction; DBP and Pes in mmHg). Chen CH et al., JACC 2001;38:2028.
+ * (EF as a fraction; DBP and Pes in mmHg, Pes = 0.9·SBP). Chen CH et al., JACC
+ * 2001;38:2028; coefficients as quoted by two independent secondary
+ * implementations that cite it (the paper's own table was not read).
  * Worked example (computed here): EF 0.60, DBP 80, Pes 108, ENd(avg) 0.33614 → 0.37243.
  */
 export function normalizedElastanceEstimate(
