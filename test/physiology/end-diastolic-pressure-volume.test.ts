@@ -40,7 +40,7 @@ describe('single-beat EDPVR (Klotz 2006; Nat Protoc 2007; as quoted by a seconda
     }
   });
 
-  it('passes through 30 mmHg at V30 for EDP up to 22 mmHg, with V30 computed here from the published form', () => {
+  it('passes through 30 mmHg at V30 for EDP up to 22 mmHg, V30 held against a second typing of the quoted form in this test (not an independent value)', () => {
     fc.assert(
       fc.property(fc.double({ min: 40, max: 500, noNaN: true }), fc.double({ min: 2, max: 22, noNaN: true }), (edv, edp) => {
         const c = endDiastolicCurveFromOnePoint(edv, edp).curve!;
