@@ -45,9 +45,9 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     [
       'elastimate record add co203.json --subject CO-203 --date 2024-09-02 --input cases/cardio-oncology.visit.json --note "after cycle 4"',
       'elastimate record add co203.json --date 2024-12-02 --sbp 128 --dbp 76 --hr 70 --edv 112 --esv 50 --pep 98 --et 286',
-      'elastimate record add co203.json --date 2025-03-03   # asks for what is missing',
+      'elastimate record add co203.json --date 2025-03-03',
     ],
-    '--sex and --birth-year describe the subject and are stored once; other flags belong to this visit.\nThe visit date may not be after today.',
+    '--sex and --birth-year describe the subject and are stored once; other flags\nbelong to this visit. The visit date may not be after today. On a terminal,\nmissing inputs are asked for (the last example).',
   );
 
   const show = record

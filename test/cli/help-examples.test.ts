@@ -48,9 +48,11 @@ describe('--help ends with examples', () => {
     const name = ['elastimate', ...path].join(' ');
     it(`${name}: two or three examples, last in the help, each using only options the command has`, () => {
       const help = helpOf(cmd);
-      const m = /\nExamples:\n((?: {2}\$ .*\n)+)$/.exec(help);
+      const m = /\nExamples:\n((?: {2}\$ .*\n(?: {6}.*\n)*)+)$/.exec(help);
       expect(m, help.slice(-400)).not.toBeNull();
-      const lines = m![1]!.trimEnd().split('\n').map((l) => l.replace(/^ {2}\$ /, ''));
+      // Each example within 80 columns; a long one continues on the next line after a backslash.
+      for (const l of m![1]!.trimEnd().split('\n')) expect(l.length, l).toBeLessThanOrEqual(80);
+      const lines = m![1]!.trimEnd().replace(/ \\\n {6}/g, ' ').split('\n').map((l) => l.replace(/^ {2}\$ /, ''));
       expect(lines.length).toBeGreaterThanOrEqual(2);
       expect(lines.length).toBeLessThanOrEqual(3);
       for (const line of lines) {
