@@ -75,7 +75,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   // The edited visit must still compute, with the subject's data underneath.
   visitInputs(subject, edited);
 
-  const others = file.visits.filter((v) => v !== hit.visit);
+  const others = file.visits.filter((_v, i) => i !== hit.position);
   if (date !== hit.visit.date && !(await allowSameDate(opts, others, date))) {
     process.stdout.write('Nothing changed.\n');
     return;
