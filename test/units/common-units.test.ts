@@ -24,13 +24,14 @@ describe('the common-units table', () => {
     expect(ENTRIES.map((e) => e.unit).sort()).toEqual(['/min', 'Hz', 'L', 'bpm', 'cm', 'cmH2O', 'g', 'kPa', 'kg', 'lb', 'm', 'mL', 'mm', 'mmHg', 'ms', 's'].sort());
   });
 
-  it('converts every entry without loading mathjs, with and without a space before the unit', () => {
+  it('converts every entry, and %, without loading mathjs, with and without a space before the unit', () => {
     for (const { kind, unit } of ENTRIES) {
       toInternalUnit('x', `12 ${unit}`, kind);
       toInternalUnit('x', `12${unit}`, kind);
     }
     toInternalUnit('hr', '72 BPM', 'rate'); // the trade's rate spellings in any case
     toInternalUnit('hr', '72 / min', 'rate');
+    expect(toInternalUnit('ef', '60 %', 'percent')).toBe(60); // % is read as the number itself
     expect(mathjsLoaded()).toBe(false);
   });
 
