@@ -14,7 +14,7 @@ import { readSubjectFileIfExists, updateSubjectFile } from '../records/store.js'
 import { SubjectIdSchema, newSubjectFile, type SubjectFile, type SubjectInfo, type Visit } from '../records/subject-schema.js';
 import { formatQuantity } from '../render/format.js';
 import { canPrompt, gatherRaw, missingError } from './assess-command.js';
-import { allowSameDate, calendarDate, info, parseBirthYear, parseNoteOption, parseVisitDate, sameDateError, systemClock, warn, type Clock } from './record-common.js';
+import { allowSameDate, calendarDate, info, parseBirthYear, parseNoteOption, parseVisitDate, recheckSameDate, systemClock, warn, type Clock } from './record-common.js';
 
 /** What the previous visit offers as defaults: things that rarely change. */
 export function suggestionsFrom(file: SubjectFile | null): Partial<RawInputs> {
@@ -120,8 +120,7 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
     (current) => {
       // Re-check against what is on disk now: another process may have written meanwhile.
       const base = current ?? newSubjectFile(subject);
-      const sameDay = base.visits.filter((v) => v.date === date).length;
-      if (sameDay > (existing?.visits.filter((v) => v.date === date).length ?? 0) && opts.sameDate !== true) throw sameDateError(date, sameDay);
+      recheckSameDate(opts, existing?.visits ?? [], base.visits, date);
       const updatedSubject = subjectAfter(current ? current.subject : null, subject.id, subject.sex, subject.birthYear, path);
       return insertVisit({ ...base, subject: updatedSubject }, visit);
     },

@@ -45,13 +45,22 @@ export function parseVisitDate(value: unknown, today: string, field = 'date'): s
   return date;
 }
 
+/** "a visit" or "3 visits". */
+function visitCount(n: number): string {
+  return n === 1 ? 'a visit' : `${n} visits`;
+}
+
+/** Visits of `visits` on `date`. */
+function countOn(visits: readonly Visit[], date: string): number {
+  return visits.filter((v) => v.date === date).length;
+}
 
 /** The refusal of a second visit on one date when nobody said it is intended. */
 export function sameDateError(date: string, existing: number): InputError {
   return new InputError({
     field: 'date',
     value: showValue(date),
-    reason: `the subject file already has ${existing === 1 ? 'a visit' : `${existing} visits`} on that date`,
+    reason: `the subject file already has ${visitCount(existing)} on that date`,
     accepted: `another date, or ${SAME_DATE_FLAG} if a second visit on the same date is intended`,
   });
 }
@@ -62,11 +71,20 @@ export function sameDateError(date: string, existing: number): InputError {
  * terminal ask; elsewhere refuse (exit 2). Resolves false when the user declines at the prompt.
  */
 export async function allowSameDate(opts: Record<string, unknown>, others: readonly Visit[], date: string): Promise<boolean> {
-  const existing = others.filter((v) => v.date === date).length;
+  const existing = countOn(others, date);
   if (existing === 0 || opts.sameDate === true) return true;
   if (!canPrompt(opts)) throw sameDateError(date, existing);
   const { confirm } = await import('@inquirer/prompts');
-  return confirm({ message: `The subject file already has ${existing === 1 ? 'a visit' : `${existing} visits`} on ${date}. Add another visit on that date?`, default: false });
+  return confirm({ message: `The subject file already has ${visitCount(existing)} on ${date}. Add another visit on that date?`, default: false });
+}
+
+/**
+ * Inside the locked update: refuse when another process put a visit on `date` after allowSameDate
+ * looked at `before` (unless --same-date). `now` is the file's other visits as they are on disk.
+ */
+export function recheckSameDate(opts: Record<string, unknown>, before: readonly Visit[], now: readonly Visit[], date: string): void {
+  const count = countOn(now, date);
+  if (opts.sameDate !== true && count > countOn(before, date)) throw sameDateError(date, count);
 }
 
 /** `--note`: free text within the subject-file schema's limit (checked here so nothing fails at write time). */

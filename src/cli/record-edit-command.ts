@@ -10,7 +10,7 @@ import { findVisit, insertVisit, tidyEntered, visitInputs } from '../records/ser
 import { readSubjectFile, updateSubjectFile } from '../records/store.js';
 import type { SubjectFile, SubjectInfo, Visit } from '../records/subject-schema.js';
 import { gatherRaw } from './assess-command.js';
-import { allowSameDate, calendarDate, confirmChange, info, parseBirthYear, parseNoteOption, parseVisitDate, sameDateError, systemClock, type Clock } from './record-common.js';
+import { allowSameDate, calendarDate, confirmChange, info, parseBirthYear, parseNoteOption, parseVisitDate, recheckSameDate, systemClock, type Clock } from './record-common.js';
 
 const INPUT_KEYS = Object.keys(RawInputsSchema.shape) as (keyof RawInputs)[];
 
@@ -92,8 +92,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
       const at = positionOf(current, hit.visit, path);
       const visits = current!.visits.filter((_v, i) => i !== at);
       // Another process may have put a visit on the new date meanwhile.
-      const sameDay = visits.filter((v) => v.date === date).length;
-      if (date !== hit.visit.date && sameDay > others.filter((v) => v.date === date).length && opts.sameDate !== true) throw sameDateError(date, sameDay);
+      if (date !== hit.visit.date) recheckSameDate(opts, others, visits, date);
       return insertVisit({ ...current!, subject: { ...current!.subject, ...(sex !== undefined ? { sex } : {}), ...(birthYear !== undefined ? { birthYear } : {}) }, visits }, edited);
     },
     { now: clock(), backup: true },

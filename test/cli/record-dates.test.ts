@@ -10,7 +10,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest
 import { InputError } from '../../src/errors.js';
 import { runRecordAdd } from '../../src/cli/record-add-command.js';
 import { runRecordEdit } from '../../src/cli/record-edit-command.js';
-import { calendarDate, parseVisitDate } from '../../src/cli/record-common.js';
+import { calendarDate, parseVisitDate, recheckSameDate } from '../../src/cli/record-common.js';
 import { STACK_FRAME, requireBuild, runCli, ok } from './fixtures/run-cli.js';
 
 const VISIT = ['--sbp', '120', '--dbp', '80', '--hr', '60', '--edv', '120', '--esv', '50', '--pep', '90', '--et', '290'];
@@ -53,6 +53,18 @@ describe('today comes from a clock passed in', () => {
     await runRecordEdit(path, '1', { date: '2030-06-04', yes: true }, undefined, fixedClock(2030, 6, 4));
     const stored = JSON.parse(readFileSync(path, 'utf8')) as { visits: { date: string }[] };
     expect(stored.visits.map((v) => v.date)).toEqual(['2030-06-04']);
+  });
+});
+
+describe('inside the locked write', () => {
+  it('refuses when another process put a visit on the date after the first look, unless --same-date', () => {
+    const visit = (date: string) => ({ date, inputs: {} });
+    const before = [visit('2024-05-01')];
+    const now = [visit('2024-05-01'), visit('2024-06-01')];
+    expect(() => recheckSameDate({}, before, now, '2024-06-01')).toThrow('date: got "2024-06-01"; the subject file already has a visit on that date; accepted: another date, or --same-date');
+    expect(() => recheckSameDate({ sameDate: true }, before, now, '2024-06-01')).not.toThrow();
+    // What was already there when the user was asked (and agreed) is no reason to refuse.
+    expect(() => recheckSameDate({}, before, before, '2024-05-01')).not.toThrow();
   });
 });
 
