@@ -78,9 +78,16 @@ export async function buildReportModel(file: SubjectFile, options: ReportModelOp
   return { subject: file.subject, visits, selected, compared, comparison, lsc, generated: options.generated, toolVersion: options.toolVersion, uncertaintyNote };
 }
 
+/** The file-name endings of each report format. */
+export const REPORT_EXTENSIONS: Record<ReportFormat, readonly string[]> = { html: ['.html', '.htm'], md: ['.md', '.markdown'] };
+
+/** --format when given, else the format the --out file name ends in (HTML when it names none). */
 export function reportFormat(opts: Record<string, unknown>): ReportFormat {
   const raw = opts.format;
-  if (raw === undefined) return typeof opts.out === 'string' && extname(opts.out).toLowerCase() === '.md' ? 'md' : 'html';
+  if (raw === undefined) {
+    const ending = typeof opts.out === 'string' ? extname(opts.out).toLowerCase() : '';
+    return REPORT_EXTENSIONS.md.includes(ending) ? 'md' : 'html';
+  }
   if (raw === 'html' || raw === 'md') return raw;
   throw new InputError({ field: '--format', value: showValue(raw), accepted: 'html or md' });
 }
@@ -95,7 +102,9 @@ export async function runReport(subjectPath: string, opts: Record<string, unknow
     throw new InputError({ field: '--out', value: '', reason: 'required', accepted: format === 'md' ? 'a file path ending in .md, e.g. --out report.md' : 'a file path ending in .html, e.g. --out report.html' });
   }
   const inputs = [subjectPath];
-  const out = checkOutputPath(opts.out, { option: '--out', extensions: format === 'md' ? ['.md', '.markdown'] : ['.html', '.htm'], inputs });
+  // Without --format the file name chooses the format, so every ending of every format is accepted.
+  const extensions = opts.format === undefined ? [...REPORT_EXTENSIONS.html, ...REPORT_EXTENSIONS.md] : REPORT_EXTENSIONS[format];
+  const out = checkOutputPath(opts.out, { option: '--out', extensions, inputs });
   const parsed: { draws?: number; seed?: number } = {};
   if (opts.draws !== undefined || opts.seed !== undefined) {
     const { parseDraws, parseSeed } = await import('../assessment/uncertainty.js');

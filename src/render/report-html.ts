@@ -234,7 +234,7 @@ export function reportCaveats(v: ReportVisit): { flags: { level: string; message
 export const REFERENCES = [
   'Chen CH et al. Noninvasive single-beat determination of left ventricular end-systolic elastance in humans. J Am Coll Cardiol 2001;38:2028–34.',
   'Kelly RP et al. Effective arterial elastance as index of arterial vascular load in humans. Circulation 1992;86:513–21.',
-  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants from memory).',
+  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants as quoted by a secondary implementation citing the authors\' protocol, Nat Protoc 2007;2:2152).',
   'Nagueh SF et al. Doppler tissue imaging … estimation of filling pressures. J Am Coll Cardiol 1997;30:1527–33.',
   'Reichek N et al. Noninvasive determination of left ventricular end-systolic stress. Circulation 1982;65:99.',
   'Suga H. Ventricular energetics. Physiol Rev 1990;70:247–77; Burkhoff D, Sagawa K. Am J Physiol 1986;250:R1021.',

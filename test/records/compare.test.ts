@@ -158,7 +158,7 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     expect(text).not.toMatch(/NaN|Infinity|undefined/);
   });
 
-  it('keeps the published repeatability in one place', () => {
+  it('keeps the published repeatability in one place (Chen 2001 abstract: CV 20.3 %; 1.96·√2 × 0.1 = 0.2772 for a CV of 10 %)', () => {
     expect(REPEATABILITY.eesCv).toBe(0.203);
     expect(leastSignificantChange(0.1, 'x').logLimit).toBeCloseTo(0.277, 10);
   });
