@@ -14,8 +14,29 @@ export function canPrompt(opts: Record<string, unknown>): boolean {
 
 /** Raw inputs from `--input` and flags (flags win). */
 export function gatherRaw(opts: Record<string, unknown>, inputFile: string | undefined): RawInputs {
-  const fromFile = inputFile ? readVisitFile(inputFile) : {};
-  return mergeRaw(fromFile, rawFromOptions(opts));
+  return gatherRawWithOverrides(opts, inputFile).raw;
+}
+
+function shownRaw(value: unknown): string {
+  return Array.isArray(value) ? value.map(String).join(', ') : String(value);
+}
+
+/**
+ * Raw inputs from `--input` and flags, and the inputs where a flag overrode a
+ * different value in the visit file, worded for the report:
+ * "from --hr; the visit file had 68".
+ */
+export function gatherRawWithOverrides(opts: Record<string, unknown>, inputFile: string | undefined): { raw: RawInputs; overrides: Record<string, string> } {
+  const fromFile: RawInputs = inputFile ? readVisitFile(inputFile) : {};
+  const fromFlags = rawFromOptions(opts);
+  const overrides: Record<string, string> = {};
+  for (const [key, value] of Object.entries(fromFlags)) {
+    const before = (fromFile as Record<string, unknown>)[key];
+    if (value === undefined || before === undefined || key === 'errors' || shownRaw(before) === shownRaw(value)) continue;
+    const flag = NUMERIC_FIELDS.find((f) => f.key === key)?.flag ?? key.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`);
+    overrides[key] = `from --${flag}; the visit file had ${shownRaw(before)}`;
+  }
+  return { raw: mergeRaw(fromFile, fromFlags), overrides };
 }
 
 export function missingError(missing: string[], raw?: RawInputs): InputError {
@@ -51,18 +72,20 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   const uncertainty = wantsUncertainty ? await import('../assessment/uncertainty.js') : null;
   const draws = uncertainty && opts.draws !== undefined ? uncertainty.parseDraws(opts.draws) : undefined;
   const seed = uncertainty && opts.seed !== undefined ? uncertainty.parseSeed(opts.seed) : undefined;
-  const raw = await completeRaw(gatherRaw(opts, inputFile), opts);
+  const gathered = gatherRawWithOverrides(opts, inputFile);
+  const overrides = gathered.overrides;
+  const raw = await completeRaw(gathered.raw, opts);
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
   if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath);
-  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts);
-  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true });
+  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, overrides);
+  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, overrides });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
 }
 
 /** The report with 95 % ranges, variance shares and the method's own error (docs/uncertainty.md). */
-async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>): Promise<void> {
+async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, overrides: Record<string, string>): Promise<void> {
   const view = await import('../render/uncertainty.js');
   if (opts.json === true) {
     const { stringifySafe } = await import('../render/json.js');
@@ -71,5 +94,5 @@ async function printWithUncertainty(result: Assessment, report: UncertaintyRepor
     return;
   }
   const { terminalStyle } = await import('./output.js');
-  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true }) + '\n');
+  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true, overrides }) + '\n');
 }

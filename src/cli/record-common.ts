@@ -3,7 +3,7 @@
  * confirmation, and the series views (also used by `demo`).
  */
 import { InputError, showValue } from '../errors.js';
-import { changesAlongSeries, compareVisits } from '../records/compare.js';
+import { attachNoiseChecks, changesAlongSeries, compareVisits } from '../records/compare.js';
 import { assessSeries, findVisit, type SeriesEntry } from '../records/series.js';
 import { BIRTH_YEAR_RANGE, VisitSchema, isCalendarDate, type SubjectFile } from '../records/subject-schema.js';
 import { comparisonToJson, renderComparison, renderSeries, renderSeriesReferral, seriesToJson } from '../render/series.js';
@@ -93,11 +93,7 @@ export async function printComparison(file: SubjectFile, fromSelector: string, t
   const comparison = compareVisits(a.assessment, b.assessment);
   // The uncertainty of the inputs (docs/uncertainty.md): each change's 95 % interval and whether it exceeds that noise.
   const { changeNoiseChecks } = await import('../assessment/uncertainty.js');
-  const noise = changeNoiseChecks(a.assessment.inputs, b.assessment.inputs);
-  for (const row of comparison.rows) {
-    const check = noise[row.key];
-    if (check) row.noise = check;
-  }
+  attachNoiseChecks(comparison, changeNoiseChecks(a.assessment.inputs, b.assessment.inputs));
   const from = { index: a.index, date: a.date };
   const to = { index: b.index, date: b.date };
   if (opts.json) {
