@@ -106,7 +106,7 @@ export function computeResults(inputs: VisitInputs, choice: MethodChoice = defau
   const eaValue = pesValue !== null ? arterialElastance(pesValue, svValue) : null;
   const ea = quantity(eaValue, 'mmHg/mL', 'Pes / SV (Sunagawa 1983; Kelly 1992)', pes.reason);
   const eaIndexed = quantity(eaValue !== null && bsaValue !== null ? indexedToBodySurface(eaValue, bsaValue) : null, 'mmHg·m²/mL', 'Ea × BSA (Pes / SV index)', bsaValue === null ? 'needs height and weight' : pes.reason);
-  const eaResistance = quantity(tprValue !== null && hr !== null ? arterialElastanceFromResistance(tprValue, hr) : null, 'mmHg/mL', 'TPR × HR / 60 (resistance view)', 'needs heart rate');
+  const eaResistance = quantity(tprValue !== null && hr !== null ? arterialElastanceFromResistance(tprValue, hr) : null, 'mmHg/mL', 'TPR × HR/60 (R/T estimate; Kelly 1992)', 'needs heart rate');
 
   const tNdValue = normalizedEjectionOnset(inputs.pep, inputs.et);
   const tNd = quantity(tNdValue, '', 'PEP / (PEP + ET) (Chen 2001)');
@@ -128,9 +128,9 @@ export function computeResults(inputs: VisitInputs, choice: MethodChoice = defau
   }
   const eesIndexed = quantity(ees.value !== null && bsaValue !== null ? indexedToBodySurface(ees.value, bsaValue) : null, 'mmHg·m²/mL', 'Ees × BSA', ees.value === null ? ees.reason : 'needs height and weight');
   const eaEes = quantity(eaValue !== null && ees.value !== null ? couplingRatio(eaValue, ees.value) : null, '', 'Ea / Ees', ees.reason ?? ea.reason);
-  const eaEesFromEf = quantity(couplingRatioFromEjectionFraction(efValue / 100), '', '1/EF − 1 (V0 = 0 identity; cross-check only)');
+  const eaEesFromEf = quantity(couplingRatioFromEjectionFraction(efValue / 100), '', '1/EF − 1 (V0(ES) = 0 identity; cross-check only)');
   const v0 = quantity(ees.value !== null && pesValue !== null ? volumeIntercept(esv, pesValue, ees.value) : null, 'mL', 'ESV − Pes / Ees', ees.reason);
-  const eesNoIntercept = quantity(pesValue !== null ? endSystolicElastanceNoIntercept(pesValue, esv) : null, 'mmHg/mL', 'Pes / ESV (crude: assumes V0 = 0)', pes.reason);
+  const eesNoIntercept = quantity(pesValue !== null ? endSystolicElastanceNoIntercept(pesValue, esv) : null, 'mmHg/mL', 'Pes / ESV (crude: assumes V0(ES) = 0)', pes.reason);
 
   return {
     pes, map, pp, sv, svVolumetric, svDoppler, ef, efVolumes, co, ci, bsa, tpr, tprDyn, compliance,

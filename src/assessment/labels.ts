@@ -68,20 +68,20 @@ export function listInWords(items: readonly string[]): string {
 }
 
 /** The two volumes at zero pressure, named apart everywhere they are shown. */
-export const V0_END_SYSTOLIC = 'V0(ES), end-systolic line intercept';
+export const V0_END_SYSTOLIC = 'V0(ES), end-systolic intercept';
 export const V0_DIASTOLIC = 'V0(ED), diastolic curve at zero pressure';
 /** Ea from resistance and heart period, as the literature names it (Kelly 1992: the R/T estimate). */
-export const EA_RT_LABEL = 'R/T estimate of Ea (TPR × HR/60)';
+export const EA_RT_LABEL = 'R/T estimate of Ea';
 /** The two normalized elastances of the single-beat method, in plain words beside the notation. */
-export const END_AVG_LABEL = 'ENd(avg), group-average normalized elastance';
-export const END_EST_LABEL = "ENd(est), this subject's normalized elastance";
+export const END_AVG_LABEL = 'ENd(avg), group average';
+export const END_EST_LABEL = 'ENd(est), this subject';
 export const END_NOTE =
   'Normalized elastance ENd is elastance at the onset of ejection divided by Ees; ENd(avg) is the group-average curve of Chen 2001 read at this tNd, ENd(est) the estimate for this subject from EF, DBP/Pes and ENd(avg).';
 /** The invasive Ees that the published calibration predicts from the single-beat estimate (Chen 2001). */
-export const CALIBRATED_EES_LABEL = 'Invasive-equivalent Ees (Chen 2001 calibration)';
+export const CALIBRATED_EES_LABEL = 'Invasive-equivalent Ees';
 /** What the published calibration does to a probability, in one line. */
 export const CALIBRATION_SHIFT_NOTE =
-  "The published calibration (invasive Ees = 0.86·Ees + 0.40, Chen 2001) moves the centre, not only the spread: it raises Ees below about 2.9 mmHg/mL and lowers it above, so Ea/Ees and the probability above 1.2 shift as well as widen.";
+  'The published calibration (0.86·Ees + 0.40, Chen 2001) moves the centre, not only the spread.';
 
 /** The coupling ratio against the 1.2 cut-off, as every view says it (terminal, record show, report). */
 export function couplingNote(eaEes: number | null): string {

@@ -3,7 +3,7 @@
  * noise. Pure: two assessments in, a Comparison out; renderers word it.
  *
  * Attribution (exact identities on the log scale, so the parts add up):
- * - Arterial load. Ea ≈ TPR × HR / 60 (the resistance view; Sunagawa 1983,
+ * - Arterial load. Ea ≈ TPR × HR / 60 (the R/T estimate; Sunagawa 1983,
  *   Kelly 1992), so
  *     ln Ea = ln TPR + ln HR − ln 60 + ln(Ea / (TPR·HR/60))
  *   and Δln Ea = Δln HR (heart-rate part) + Δln TPR (resistance part)

@@ -150,7 +150,7 @@ export function diagramNotes(visits: readonly PvVisit[]): string[] {
     if (l.edpSource === 'none') notes.push(`${who}the diastolic curve needs EDP or E/e′; drawn without it (ejection limb only).`);
     if (l.edpSource === 'estimated') notes.push(`${who}diastolic curve from EDP ${formatNumber(l.edp, 0)} mmHg ESTIMATED from E/e′ (Nagueh 1997), ±8 mmHg.`);
     if (i === 0 && l.ea !== null && l.eaLineSlope !== null && formatNumber(l.ea, 2) !== formatNumber(l.eaLineSlope, 2)) {
-      notes.push(`${who}the Ea line's slope is Pes/(EDV − ESV) = ${formatNumber(l.eaLineSlope, 2)} mmHg/mL, from the volumes the loop is drawn with; the reported Ea ${formatNumber(l.ea, 2)} mmHg/mL is Pes/SV with the Doppler stroke volume, so the two differ.`);
+      notes.push(`${who}the Ea line's slope is Pes/(EDV − ESV) = ${formatNumber(l.eaLineSlope, 2)} mmHg/mL; the reported Ea ${formatNumber(l.ea, 2)} uses the Doppler stroke volume.`);
     }
     if (l.v0 !== null && l.v0 < 0 && l.ees !== null) notes.push(`${who}V0(ES) = ${formatNumber(l.v0, 0)} mL, the end-systolic line's intercept, lies left of the volume axis (the single-beat intercept is often negative).`);
     if (i === 0 && l.diastolicCurve && l.diastolicCurve.anchorPressure === 15) {

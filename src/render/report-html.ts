@@ -153,14 +153,14 @@ export function keyRows(v: ReportVisit): KeyRow[] {
     q('Arterial elastance Ea', r.ea),
     q('End-systolic elastance Ees', r.ees),
     q('Coupling ratio Ea/Ees', r.eaEes, couplingNote(r.eaEes.value)),
-    q(V0_END_SYSTOLIC, r.v0, 'ESV − Pes/Ees; the single-beat intercept is often negative'),
+    q(V0_END_SYSTOLIC, r.v0, 'ESV − Pes/Ees; often negative'),
   ];
   if (u) {
     rows.push({
       label: CALIBRATED_EES_LABEL,
       value: u.methodError.calibratedEes === null ? '—' : formatValue(u.methodError.calibratedEes, 'mmHg/mL'),
       interval: pairText(u.methodError.eesCombined, 2),
-      note: 'the invasive Ees the published calibration predicts, 0.86·Ees + 0.40 (Chen 2001); interval: its SEE 0.64 mmHg/mL with measurement error',
+      note: 'predicted by the published calibration 0.86·Ees + 0.40 (Chen 2001); interval adds its SEE 0.64 mmHg/mL',
     });
     if (u.coupling.probabilityAbove !== null) {
       rows.push({

@@ -77,7 +77,7 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('End-systolic elastance Ees', r.ees);
   line('  Ees indexed to BSA', r.eesIndexed);
   line(`  ${V0_END_SYSTOLIC}`, r.v0);
-  line('  crude Pes/ESV (V0 = 0)', r.eesNoIntercept);
+  line('  crude Pes/ESV (V0(ES) = 0)', r.eesNoIntercept);
 
   section('Coupling');
   const coupling = couplingNote(r.eaEes.value);
