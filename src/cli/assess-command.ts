@@ -84,7 +84,7 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
 }
 
-/** The report with 95 % ranges, variance shares and the method's own error (docs/uncertainty.md). */
+/** The report with 95 % intervals, variance shares and the method's own error (docs/uncertainty.md). */
 async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, overrides: Record<string, string>): Promise<void> {
   const view = await import('../render/uncertainty.js');
   if (opts.json === true) {

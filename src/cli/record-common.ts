@@ -65,7 +65,7 @@ export async function confirmChange(opts: Record<string, unknown>, question: str
 export async function printSeries(file: SubjectFile, opts: { json?: boolean; uncertainty?: boolean }): Promise<SeriesEntry[]> {
   let entries = assessSeries(file);
   const changes = changesAlongSeries(entries.map((e) => e.assessment));
-  // --uncertainty: 95 % ranges per visit and the noise of each change (docs/uncertainty.md).
+  // --uncertainty: 95 % intervals per visit and the noise of each change (docs/uncertainty.md).
   const uncertainty = opts.uncertainty ? await Promise.all([import('../assessment/uncertainty.js'), import('../render/uncertainty.js')]) : null;
   const ranges = uncertainty ? uncertainty[0].seriesUncertainty(entries, changes) : null;
   if (ranges) entries = ranges.entries;

@@ -66,7 +66,7 @@ describe('validity flags: assumptions of the single-beat method (Chen 2001; comm
       rhythm: 'atrial fibrillation', 'aortic-stenosis': 'aortic stenosis', 'aortic-regurgitation': 'aortic regurgitation',
       'mitral-regurgitation': 'mitral regurgitation', 'outflow-obstruction': 'outflow-tract obstruction',
     };
-    const said = code === 'rhythm' && over.rhythm === 'other' ? 'a rhythm other than sinus' : words[code];
+    const said = code === 'rhythm' && (over as { rhythm?: string }).rhythm === 'other' ? 'a rhythm other than sinus' : words[code];
     expect(a.referral).toContain(`Method limits apply (${said})`);
     expect(a.referral).not.toContain(code === 'rhythm' ? 'atrial-fibrillation' : code);
     if (code === 'rhythm') expect(flag!.message).not.toMatch(/atrial-fibrillation/);
