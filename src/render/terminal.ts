@@ -156,10 +156,16 @@ function inputRows(a: Assessment, overrides: Partial<Record<string, string>>): I
 /**
  * The one word-wrapper for prose on a terminal: a paragraph broken into
  * lines of at most `width` characters (a single word longer than that keeps
- * its own line), counting characters, not bytes.
+ * its own line), counting characters, not bytes; a percent sign stays with its number.
  */
 export function wrap(text: string, width: number): string[] {
-  const words = text.split(/\s+/).filter((w) => w !== '');
+  // A unit written after a space ("75 %", "12 mmHg") stays on its number's line for the percent sign.
+  const words: string[] = [];
+  for (const w of text.split(/\s+/)) {
+    if (w === '') continue;
+    if (/^%/.test(w) && words.length > 0) words[words.length - 1] += ' ' + w;
+    else words.push(w);
+  }
   const lines: string[] = [];
   let current = '';
   const len = (t: string) => [...t].length;

@@ -23,7 +23,7 @@ import { assessmentToJson } from '../../src/render/json.js';
 import { keyRows, renderReportHtml, trendSvgs } from '../../src/render/report-html.js';
 import { comparisonSummary, judgementWords, renderComparison, renderSeries } from '../../src/render/series.js';
 import { plainStyle } from '../../src/render/style.js';
-import { renderTerminal } from '../../src/render/terminal.js';
+import { renderTerminal, wrap } from '../../src/render/terminal.js';
 import { renderPvSketch } from '../../src/render/terminal-plot.js';
 import { renderTrendChart } from '../../src/render/trend-chart.js';
 import { renderTerminalWithUncertainty, seriesIntervalLines, uncertaintyJson, uncertaintySection } from '../../src/render/uncertainty.js';
@@ -279,5 +279,13 @@ describe('every label of every trend chart fits inside its SVG (item 6)', async 
     for (const v of boxes.filter((b) => b.cls === 'value-label')) {
       for (const k of key) expect(overlap(v.box, k.box), `value "${v.text}" over key "${k.text}"`).toBe(false);
     }
+  });
+});
+
+describe('the one wrapper', () => {
+  it('breaks at spaces within the width, never between a number and its percent sign', () => {
+    const lines = wrap('the least significant change (±0.562 in ln (+75 % / −43 %), repeat CV 20.3 %)', 43);
+    expect(lines).toEqual(['the least significant change (±0.562 in ln', '(+75 % / −43 %), repeat CV 20.3 %)']);
+    for (const l of wrap('a b c (+75 % / −43 %)', 9)) expect(l.startsWith('%')).toBe(false);
   });
 });
