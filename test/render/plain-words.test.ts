@@ -22,7 +22,7 @@ import { SubjectFileSchema, type SubjectFile } from '../../src/records/subject-s
 import { assessmentToJson } from '../../src/render/json.js';
 import { keyRows, renderReportHtml, trendSvgs } from '../../src/render/report-html.js';
 import { comparisonSummary, judgementWords, renderComparison, renderSeries } from '../../src/render/series.js';
-import { plainStyle } from '../../src/render/style.js';
+import { plainStyle, screenWidth } from '../../src/render/style.js';
 import { renderTerminal, wrap } from '../../src/render/terminal.js';
 import { renderPvSketch } from '../../src/render/terminal-plot.js';
 import { renderTrendChart } from '../../src/render/trend-chart.js';
@@ -288,5 +288,15 @@ describe('the one wrapper', () => {
     expect(lines).toEqual(['the least significant change (±0.562 in ln', '(+75 % / −43 %), repeat CV 20.3 %)']);
     // "xx (+75" fills 7 columns exactly: the percent sign must take its number to the next line, not start one.
     expect(wrap('xx (+75 % / −43 %)', 7)).toEqual(['xx', '(+75 %', '/', '−43 %)']);
+  });
+});
+
+describe('the width prose wraps to', () => {
+  it('is the terminal\'s columns on a terminal (at least 40) and 80 off one', () => {
+    expect(screenWidth({ isTTY: true, columns: 120 })).toBe(120);
+    expect(screenWidth({ isTTY: true, columns: 20 })).toBe(40);
+    expect(screenWidth({ isTTY: false, columns: 120 })).toBe(80);
+    expect(screenWidth({ isTTY: true })).toBe(80);
+    expect(screenWidth({})).toBe(80);
   });
 });
