@@ -75,6 +75,8 @@ export const EA_RT_LABEL = 'R/T estimate of Ea';
 /** The two normalized elastances of the single-beat method, in plain words beside the notation. */
 export const END_AVG_LABEL = 'ENd(avg), group average';
 export const END_EST_LABEL = 'ENd(est), this subject';
+/** ENd(est) in a few words, where a table has room for little more. */
+export const END_EST_WORDS = "ENd(est) = this subject's normalized elastance";
 export const END_NOTE =
   'Normalized elastance ENd is elastance at the onset of ejection divided by Ees; ENd(avg) is the group-average curve of Chen 2001 read at this tNd, ENd(est) the estimate for this subject from EF, DBP/Pes and ENd(avg).';
 /** The invasive Ees that the published calibration predicts from the single-beat estimate (Chen 2001). */

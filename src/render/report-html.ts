@@ -10,7 +10,7 @@ import type { Quantity } from '../assessment/result.js';
 import type { UncertaintyReport } from '../assessment/uncertainty.js';
 import { compareVisits, type Comparison } from '../records/compare.js';
 import type { SubjectInfo } from '../records/subject-schema.js';
-import { CALIBRATED_EES_LABEL, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
+import { CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
 import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
 import { comparisonSummary, judgementWords } from './series.js';
@@ -151,7 +151,7 @@ export function keyRows(v: ReportVisit): KeyRow[] {
     q('Stroke volume used', r.sv),
     q('Ejection fraction', r.ef),
     q('Arterial elastance Ea', r.ea),
-    q('End-systolic elastance Ees', r.ees),
+    q('End-systolic elastance Ees', r.ees, `single-beat (Chen 2001); ${END_EST_WORDS}`),
     q('Coupling ratio Ea/Ees', r.eaEes, couplingNote(r.eaEes.value)),
     q(V0_END_SYSTOLIC, r.v0, 'ESV − Pes/Ees; often negative'),
   ];
@@ -244,7 +244,7 @@ export function reportCaveats(v: ReportVisit): { flags: { level: string; message
 export const REFERENCES = [
   'Chen CH et al. Noninvasive single-beat determination of left ventricular end-systolic elastance in humans. J Am Coll Cardiol 2001;38:2028–34.',
   'Kelly RP et al. Effective arterial elastance as index of arterial vascular load in humans. Circulation 1992;86:513–21.',
-  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants from memory).',
+  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants as used: see docs/methods.md).',
   'Nagueh SF et al. Doppler tissue imaging … estimation of filling pressures. J Am Coll Cardiol 1997;30:1527–33.',
   'Reichek N et al. Noninvasive determination of left ventricular end-systolic stress. Circulation 1982;65:99.',
   'Suga H. Ventricular energetics. Physiol Rev 1990;70:247–77; Burkhoff D, Sagawa K. Am J Physiol 1986;250:R1021.',
@@ -314,7 +314,7 @@ ol.refs { font-size: 11.5px; padding-left: 18px; color: var(--muted); }
   .sheet:last-child { break-after: auto; page-break-after: auto; }
   h2 { break-after: avoid; page-break-after: avoid; }
   table, .note-box { break-inside: avoid; page-break-inside: avoid; }
-  figure.pv svg { max-width: 112mm; }
+  figure.pv svg { max-width: 96mm; }
   td { padding: 2px 5px; }
   .muted, .provenance, figcaption { font-size: 7.5pt; }
   .change-lines { column-count: 2; column-gap: 6mm; }

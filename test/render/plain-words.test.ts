@@ -132,6 +132,13 @@ describe('labels that say what they are (item 5)', () => {
     expect(text).not.toMatch(/\bV0\b(?!\()/);
   });
 
+  it('the report names ENd(est) in words where it first shows it, and no longer says "[from memory]" in its sources', async () => {
+    const subject = SubjectFileSchema.parse(JSON.parse(readFileSync(join(ROOT, 'cases', 'cardio-oncology.subject.json'), 'utf8')));
+    const model = await buildReportModel(subject, { generated: '2024-08-01', toolVersion: '0', draws: 1000, seed: 1 });
+    expect(keyRows(model.visits[model.selected]!).find((r) => r.label === 'End-systolic elastance Ees')!.note).toContain("ENd(est) = this subject's normalized elastance");
+    expect(renderReportHtml(model)).not.toMatch(/from memory/);
+  });
+
   it('ENd(avg) and ENd(est) have plain words beside them; Ea from resistance is the R/T estimate', () => {
     expect(text).toMatch(/ENd\(avg\), group average\s+[\d.]+/);
     expect(text).toMatch(/ENd\(est\), this subject\s+[\d.]+/);
