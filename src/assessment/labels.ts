@@ -91,6 +91,11 @@ export function couplingNote(eaEes: number | null): string {
   return eaEes > COUPLING_CUTOFF ? `above the ${COUPLING_CUTOFF} cut-off (Cheng 2008)` : `at or below the ${COUPLING_CUTOFF} cut-off (Cheng 2008)`;
 }
 
+/** A source text as a case conference reads it: a value recalled "(from memory)" becomes an assumption with the doc that gives its exact provenance. */
+export function sourceForReaders(text: string, doc: string): string {
+  return text.replace(/\(from memory\)/g, `(assumed; see ${doc})`);
+}
+
 /** How an input's provenance is shown to readers: "[from memory]" becomes words a case conference understands. */
 export function provenanceWords(provenance: string): string {
   return provenance === 'from memory' ? 'assumed default; see docs/uncertainty.md' : provenance;

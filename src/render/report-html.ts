@@ -10,7 +10,7 @@ import type { Quantity } from '../assessment/result.js';
 import type { UncertaintyReport } from '../assessment/uncertainty.js';
 import { compareVisits, type Comparison } from '../records/compare.js';
 import type { SubjectInfo } from '../records/subject-schema.js';
-import { CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
+import { sourceForReaders, CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
 import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
 import { comparisonSummary, judgementWords } from './series.js';
@@ -109,7 +109,7 @@ export function trendSpecs(m: ReportModel): TrendChartSpec[] {
       }),
     };
     const source = fromFirst[0]?.rows.find((r) => r.key === key)?.lsc.source;
-    if (source) spec.bandSource = source;
+    if (source) spec.bandSource = sourceForReaders(source, 'docs/subject-file.md');
     if (key === 'eaEes') spec.reference = { value: 1.2, label: 'cut-off 1.2 (Cheng 2008)' };
     return spec;
   });
