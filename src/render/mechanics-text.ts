@@ -38,18 +38,18 @@ export function afterloadLines(m: Mechanics, a: Assessment, width = DEFAULT_WIDT
   return lines;
 }
 
-export function energeticsLines(m: Mechanics): string[] {
+export function energeticsLines(m: Mechanics, width = DEFAULT_WIDTH - 2): string[] {
   const e = m.energetics;
   return [
     row('Stroke work SW', e.strokeWork, withJoules(e.strokeWorkJoules)),
     row('Potential energy PE', e.potentialEnergy, withJoules(e.potentialEnergyJoules)),
     row('Pressure–volume area PVA', e.pressureVolumeArea, withJoules(e.pressureVolumeAreaJoules)),
     row('Mechanical efficiency SW/PVA', e.efficiency),
-    'Model values (linear end-systolic line, Suga; Burkhoff & Sagawa 1986), not measurements; PE and PVA inherit the uncertainty of V0(ES).',
+    ...wrap('Model values (linear end-systolic line, Suga; Burkhoff & Sagawa 1986), not measurements; PE and PVA inherit the uncertainty of V0(ES).', width),
   ];
 }
 
-export function diastolicLines(m: Mechanics): string[] {
+export function diastolicLines(m: Mechanics, width = DEFAULT_WIDTH - 2): string[] {
   const d = m.diastolic;
   const lines = [row('End-diastolic pressure used', d.edp)];
   if (d.edpSource === 'entered' && d.edpFromEOverEPrime.value !== null) {
@@ -60,7 +60,7 @@ export function diastolicLines(m: Mechanics): string[] {
     lines.push(
       `${pad('Diastolic curve (Klotz 2006)', LABEL_WIDTH)}P = ${c.alpha.toPrecision(4)}·V^${formatNumber(c.beta, 3)}; ${formatNumber(c.anchorPressure, 0)} mmHg at ${formatNumber(c.anchorVolume, 0)} mL; ${V0_DIASTOLIC} ${formatNumber(c.unstressedVolume, 0)} mL`,
     );
-    if (c.anchorPressure === 15) lines.push('EDP above 22 mmHg: the curve is anchored at 15 mmHg instead of 30 mmHg (Klotz protocol), where the one-point formula is singular.');
+    if (c.anchorPressure === 15) lines.push(...wrap('EDP above 22 mmHg: the curve is anchored at 15 mmHg instead of 30 mmHg (Klotz protocol), where the one-point formula is singular.', width));
   } else {
     lines.push(`${pad('Diastolic curve', LABEL_WIDTH)}not drawn: ${d.reason ?? 'not computable'}`);
   }
@@ -73,7 +73,7 @@ export function mechanicsSections(a: Assessment, width = DEFAULT_WIDTH): { title
   if (!m) return [];
   return [
     { title: 'Afterload beside Ea: wall stress, Pes and Ea', lines: afterloadLines(m, a, width - 2) },
-    { title: 'Energetics (elastance model)', lines: energeticsLines(m) },
-    { title: 'Diastolic side (single-beat EDPVR)', lines: diastolicLines(m) },
+    { title: 'Energetics (elastance model)', lines: energeticsLines(m, width - 2) },
+    { title: 'Diastolic side (single-beat EDPVR)', lines: diastolicLines(m, width - 2) },
   ];
 }

@@ -48,6 +48,16 @@ describe('prose off a terminal wraps to 80 columns', () => {
     expect(lines.length).toBeGreaterThan(8);
     for (const l of lines) expect([...l].length, l).toBeLessThanOrEqual(80);
   });
+  it('assess --sketch: the diagram\'s notes and the energetics note', async () => {
+    const out = ok(await runCli(['assess', '--input', VISIT, '--sketch']));
+    const lines = out.split('\n');
+    const notes = lines.slice(lines.findIndex((l) => l.includes('end-systolic line   '))! + 1).filter((l) => l !== '');
+    expect(notes.join(' ')).toContain('Estimated from cuff pressure and echo volumes');
+    for (const l of notes) expect([...l].length, l).toBeLessThanOrEqual(80);
+    const model = lines.findIndex((l) => l.startsWith('  Model values'));
+    expect([...lines[model]!].length).toBeLessThanOrEqual(80);
+    expect(lines[model + 1]).toMatch(/^ {2}\S/);
+  });
   it('record compare and record show', async () => {
     const [compare, show] = await Promise.all([runCli(['record', 'compare', SUBJECT, '1', '3']), runCli(['record', 'show', SUBJECT])]);
     for (const l of proseLines(ok(compare), ['In plain words'])) expect([...l].length, l).toBeLessThanOrEqual(80);
