@@ -108,16 +108,17 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
 }
 
 export function renderVariants(a: Assessment, s: Style = plainStyle): string[] {
-  const header = `${pad('Pes estimate', 24)}${pad('SV source', 12)}${padLeft('Pes', 6)}${padLeft('SV', 6)}${padLeft('Ea', 7)}  ${pad('Ees method', 12)}${padLeft('Ees', 7)}${padLeft('Ea/Ees', 8)}`;
+  const header = `${pad('Pes estimate', 18)}${pad('SV source', 12)}${padLeft('Pes', 6)}${padLeft('SV', 6)}${padLeft('Ea', 7)}  ${pad('Ees method', 12)}${padLeft('Ees', 7)}${padLeft('Ea/Ees', 8)}`;
   const lines = [s.dim(header)];
   for (const v of a.variants) {
     const text =
-      `${pad(PES_METHOD_WORDS[v.pesMethod], 24)}` +
+      `${pad(PES_METHOD_WORDS[v.pesMethod], 18)}` +
       `${pad(STROKE_VOLUME_SOURCE_WORDS[v.strokeVolumeSource], 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.sv, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
       `${pad(v.eesMethod, 12)}${padLeft(formatNumber(v.ees, 2), 7)}${padLeft(formatNumber(v.eaEes, 2), 8)}`;
     lines.push(v.isMain ? s.strong(text + '  ← reported') : text);
   }
-  lines.push(s.dim('Pes estimates side by side: ' + a.pesEstimates.map((p) => `${PES_METHOD_WORDS[p.method]} ${p.value === null ? '— (not given)' : formatValue(p.value, 'mmHg')}`).join('; ')));
+  const side = 'Pes estimates side by side: ' + a.pesEstimates.map((p) => `${PES_METHOD_WORDS[p.method]} ${p.value === null ? '— (not given)' : formatValue(p.value, 'mmHg')}`).join('; ');
+  lines.push(...wrap(side, s.width).map((l) => s.dim(l)));
   return lines;
 }
 
