@@ -6,8 +6,16 @@
  */
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 import type { StrokeVolumeSource } from './compute.js';
+import type { ErrorInputKey } from './error-model.js';
 import type { PesMethod, Rhythm } from './fields.js';
 import type { Flag } from './result.js';
+
+/** Short names of the inputs, as a reader of an echo report says them. */
+export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
+  sbp: 'SBP', dbp: 'DBP', hr: 'heart rate', edv: 'EDV', esv: 'ESV', ef: 'reported EF', sv: 'Doppler SV',
+  lvotDiameter: 'LVOT diameter', lvotVti: 'LVOT VTI', pep: 'PEP', et: 'ET', pesMeasured: 'measured Pes',
+  height: 'height', weight: 'weight',
+};
 
 export const RHYTHM_WORDS: Record<Rhythm, string> = {
   sinus: 'sinus rhythm',

@@ -5,20 +5,13 @@
  */
 import type { Assessment } from '../assessment/assess.js';
 import type { ResultKey } from '../assessment/compute.js';
-import type { ErrorInputKey } from '../assessment/error-model.js';
 import { formatCount, withIntervals, type Share, type UncertaintyReport } from '../assessment/uncertainty.js';
 import { decimalsFor, formatNumber, formatValue, pad } from './format.js';
 import { assessmentToJson } from './json.js';
 import { plainStyle, type Style } from './style.js';
 import { renderTerminal, wrap, type TerminalOptions } from './terminal.js';
-import { CALIBRATED_EES_LABEL, CALIBRATION_SHIFT_NOTE, provenanceWords } from '../assessment/labels.js';
+import { CALIBRATED_EES_LABEL, CALIBRATION_SHIFT_NOTE, INPUT_SHORT_NAMES, provenanceWords } from '../assessment/labels.js';
 
-/** Short names of the inputs, as a reader of an echo report says them. */
-export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
-  sbp: 'SBP', dbp: 'DBP', hr: 'heart rate', edv: 'EDV', esv: 'ESV', ef: 'reported EF', sv: 'Doppler SV',
-  lvotDiameter: 'LVOT diameter', lvotVti: 'LVOT VTI', pep: 'PEP', et: 'ET', pesMeasured: 'measured Pes',
-  height: 'height', weight: 'weight',
-};
 
 const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'pes', label: 'Pes' },
