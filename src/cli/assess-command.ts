@@ -78,7 +78,7 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath);
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputFile ? [inputFile] : []);
   if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, overrides);
   else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, overrides });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
