@@ -27,7 +27,8 @@ function shownRaw(value: unknown): string {
  * "from --hr; the visit file had 68".
  */
 export function gatherRawWithOverrides(opts: Record<string, unknown>, inputFile: string | undefined): { raw: RawInputs; overrides: Record<string, string> } {
-  const fromFile: RawInputs = inputFile ? readVisitFile(inputFile) : {};
+  // `--input ""` is a bad path, not an absent option: readVisitFile refuses it.
+  const fromFile: RawInputs = inputFile !== undefined ? readVisitFile(inputFile) : {};
   const fromFlags = rawFromOptions(opts);
   const overrides: Record<string, string> = {};
   for (const [key, value] of Object.entries(fromFlags)) {
@@ -67,32 +68,39 @@ export async function completeRaw(raw: RawInputs, opts: Record<string, unknown>)
 
 export async function runAssess(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
   const diagrams = opts.svg !== undefined || opts.sketch === true ? await import('./diagram-options.js') : null;
-  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputFile ? [inputFile] : []) : null;
+  // Files this run reads (a visit file, SR files): an output may never be one of them.
+  const inputPaths = [...(inputFile ? [inputFile] : []), ...(Array.isArray(opts.sr) ? opts.sr.map(String) : [])];
+  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputPaths) : null;
   const wantsUncertainty = opts.uncertainty === true || opts.draws !== undefined || opts.seed !== undefined;
   const uncertainty = wantsUncertainty ? await import('../assessment/uncertainty.js') : null;
   const draws = uncertainty && opts.draws !== undefined ? uncertainty.parseDraws(opts.draws) : undefined;
   const seed = uncertainty && opts.seed !== undefined ? uncertainty.parseSeed(opts.seed) : undefined;
+  const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
   const gathered = gatherRawWithOverrides(opts, inputFile);
-  const overrides = gathered.overrides;
-  const raw = await completeRaw(gathered.raw, opts);
+  const imported = sr ? sr.underGiven(await sr.gatherSr(opts), gathered.raw) : null;
+  const raw = await completeRaw(imported ? imported.raw : gathered.raw, opts);
+  // Where inputs came from when not simply typed: an SR import, or a flag that overrode the visit file.
+  const sources: Record<string, string> = { ...(sr && imported ? sr.sourceTexts(imported.sources) : {}), ...gathered.overrides };
+  const inputSources = Object.keys(sources).length > 0 ? sources : undefined;
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputFile ? [inputFile] : []);
-  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, overrides);
-  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, overrides });
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputPaths);
+  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, inputSources);
+  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
 }
 
 /** The report with 95 % intervals, variance shares and the method's own error (docs/uncertainty.md). */
-async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, overrides: Record<string, string>): Promise<void> {
+async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, inputSources?: Record<string, string>): Promise<void> {
   const view = await import('../render/uncertainty.js');
   if (opts.json === true) {
     const { stringifySafe } = await import('../render/json.js');
     const { toolVersion } = await import('./package-info.js');
-    process.stdout.write(stringifySafe(view.assessmentToJsonWithUncertainty(result, report, toolVersion())) + '\n');
+    const json = view.assessmentToJsonWithUncertainty(result, report, toolVersion());
+    process.stdout.write(stringifySafe(inputSources ? { ...json, inputSources } : json) + '\n');
     return;
   }
   const { terminalStyle } = await import('./output.js');
-  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true, overrides }) + '\n');
+  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) }) + '\n');
 }

@@ -4,6 +4,7 @@
  * inputs are asked for on a terminal, offering the previous visit's values
  * for what rarely changes; elsewhere they are one error listing them all.
  */
+import { sanitizeText } from '../text/sanitize.js';
 import { assess, type Assessment } from '../assessment/assess.js';
 import { flagWords, listInWords } from '../assessment/labels.js';
 import { missingRequired, type RawInputs } from '../assessment/inputs.js';
@@ -79,11 +80,15 @@ function visitOnly(completed: RawInputs, fromSubject: RawInputs, givenForVisit: 
 }
 
 export async function runRecordAdd(path: string, opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
-  const date = parseDateOption(opts.date);
   const id = opts.subject === undefined ? undefined : checkSubjectId(opts.subject);
   const birthYear = parseBirthYear(opts.birthYear);
   const note = parseNoteOption(opts.note);
-  const raw = gatherRaw(opts, inputFile);
+  const given = gatherRaw(opts, inputFile);
+  // A DICOM SR (--sr): its values under the given ones; the visit date defaults to its study date.
+  const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
+  const imported = sr ? await sr.gatherSr(opts) : null;
+  const date = parseDateOption(opts.date ?? imported?.studyDate ?? undefined);
+  const { raw, sources } = sr ? sr.underGiven(imported, given) : { raw: given, sources: {} };
   const sex = raw.sex;
   delete raw.sex;
 
@@ -101,7 +106,8 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
     merged = await collectInteractively(merged, { suggestions: suggestionsFrom(existing) });
   }
   const inputs = tidyEntered(visitOnly(merged, fromSubject, raw));
-  const visit: Visit = { date, inputs, ...(note !== undefined ? { note } : {}) };
+  const kept = sr ? sr.sourcesStillUsed(sources, imported, inputs) : {};
+  const visit: Visit = { date, inputs, ...(note !== undefined ? { note } : {}), ...(Object.keys(kept).length > 0 ? { sources: kept } : {}) };
   // Validate now, with the subject's data underneath, so nothing invalid is stored.
   const assessment = assess(visitInputs(subject, visit));
 
@@ -123,7 +129,7 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   for (const b of result.backups) info(`the file was upgraded to the current format; the previous version is kept as ${b}`);
   const r = assessment.results;
   process.stdout.write(
-    `${result.created ? 'Created' : 'Updated'} ${path}: subject ${result.file.subject.id}, visit ${index} of ${ordered.length} on ${date}.\n` +
+    `${result.created ? 'Created' : 'Updated'} ${path}: subject ${sanitizeText(result.file.subject.id)}, visit ${index} of ${ordered.length} on ${date}.\n` +
       `  Ea ${formatQuantity(r.ea)}, Ees ${formatQuantity(r.ees)}, Ea/Ees ${formatQuantity(r.eaEes)} (methods ${assessment.methodsVersion}; research use only, not a diagnosis).\n` +
       checksFiredLine(assessment, path),
   );

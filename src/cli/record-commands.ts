@@ -4,6 +4,7 @@
  */
 import type { Command } from 'commander';
 import { addMeasurementOptions } from './measurement-options.js';
+import { addSrOption } from './sr-option.js';
 
 function collect(value: string, previous: string[] | undefined): string[] {
   return [...(previous ?? []), value];
@@ -19,12 +20,13 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .description('add a visit, creating the subject file with the first one')
     .argument('<file>', 'subject file, e.g. CO-203.subject.json')
     .option('--subject <id>', 'pseudonymous subject id, e.g. CO-203 (needed to create the file)')
-    .option('--date <YYYY-MM-DD>', 'visit date');
+    .option('--date <YYYY-MM-DD>', 'visit date (default: the study date of --sr)');
   addMeasurementOptions(add);
+  addSrOption(add);
   add
     .option('--birth-year <year>', 'subject\'s birth year (stored with the subject; age at each visit follows from it)')
     .option('--note <text>', 'free-text note for this visit (no names)')
-    .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
+    .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
     .addHelpText('after', '\n--sex and --birth-year describe the subject and are stored once; other flags belong to this visit.')
     .action(async (file: string, opts: Record<string, unknown>, cmd: Command) => {
@@ -66,7 +68,7 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .option('--note <text>', 'new note (an empty text removes it)')
     .option('--unset <input>', 'remove an input from the visit, e.g. --unset sv (repeatable)', collect)
     .option('--birth-year <year>', 'subject\'s birth year')
-    .option('--input <file>', 'visit file in JSON whose values replace the visit\'s; flags override it')
+    .option('--input <file>', 'visit file in JSON (or - for standard input) whose values replace the visit\'s; flags override it')
     .option('--yes', 'do not ask for confirmation')
     .action(async (file: string, visit: string, opts: Record<string, unknown>, cmd: Command) => {
       const { runRecordEdit } = await import('./record-edit-command.js');
@@ -96,9 +98,20 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     });
 
   program
+    .command('sr-cohort')
+    .description('a folder of DICOM SR files of echo studies as a cohort CSV for batch, one row per study (docs/sr-import.md)')
+    .argument('<folder>', 'folder of SR files (one or more per study)')
+    .option('--ids <file>', 'your CSV mapping SR file names to pseudonymous ids (columns file, subject); without it the subject column is left for you to fill')
+    .option('--out <file>', 'write to this CSV file (atomically) instead of standard output')
+    .action(async (folder: string, opts: Record<string, unknown>) => {
+      const { runSrCohort } = await import('./sr-cohort-command.js');
+      await runSrCohort(folder, opts);
+    });
+
+  program
     .command('batch')
     .description('results for every row of a cohort CSV, streamed (docs/batch.md)')
-    .argument('<in.csv>', 'CSV with a header row; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')
+    .argument('<in.csv>', 'CSV with a header row, or - for standard input; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')
     .option('--out <file>', 'write to this file (replaced only when the run completes) instead of standard output')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runBatch } = await import('./batch-command.js');

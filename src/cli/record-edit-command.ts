@@ -3,6 +3,7 @@
  * change or drop one visit after a confirmation (a prompt on a terminal,
  * `--yes` in scripts), keeping a backup of the file as it was.
  */
+import { sanitizeText } from '../text/sanitize.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS } from '../assessment/fields.js';
 import { RawInputsSchema, type RawInputs } from '../assessment/inputs.js';
 import { InputError, showValue } from '../errors.js';
@@ -55,7 +56,12 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   const inputs: Record<string, unknown> = { ...hit.visit.inputs, ...given };
   if (given.errors || hit.visit.inputs.errors) inputs.errors = { ...(hit.visit.inputs.errors ?? {}), ...(given.errors ?? {}) };
   for (const key of unset) delete inputs[key];
-  const edited: Visit = { date, inputs: tidyEntered(inputs as RawInputs), ...(note !== undefined && note !== '' ? { note } : {}) };
+  const editedInputs = tidyEntered(inputs as RawInputs);
+  // An imported input keeps its source (docs/sr-import.md) only while its value is unchanged.
+  const sources = Object.fromEntries(
+    Object.entries(hit.visit.sources ?? {}).filter(([k]) => JSON.stringify((editedInputs as Record<string, unknown>)[k]) === JSON.stringify((hit.visit.inputs as Record<string, unknown>)[k])),
+  );
+  const edited: Visit = { date, inputs: editedInputs, ...(note !== undefined && note !== '' ? { note } : {}), ...(Object.keys(sources).length > 0 ? { sources } : {}) };
   const subject: SubjectInfo = { ...file.subject, ...(sex !== undefined ? { sex } : {}), ...(birthYear !== undefined ? { birthYear } : {}) };
 
   const changes: string[] = [];
@@ -75,7 +81,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   // The edited visit must still compute, with the subject's data underneath.
   visitInputs(subject, edited);
 
-  const what = `changing visit ${hit.index} (${hit.visit.date}) of subject ${file.subject.id}`;
+  const what = `changing visit ${hit.index} (${hit.visit.date}) of subject ${sanitizeText(file.subject.id)}`;
   process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}:\n${changes.map((c) => `  ${c}`).join('\n')}\n`);
   if (!(await confirmChange(opts, 'Save this change? A backup of the file is kept.', what))) {
     process.stdout.write('Nothing changed.\n');
@@ -97,8 +103,8 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
 export async function runRecordRemove(path: string, selector: string, opts: Record<string, unknown>): Promise<void> {
   const file = readSubjectFile(path);
   const hit = findVisit(file, selector);
-  const what = `removing visit ${hit.index} (${hit.visit.date}) of subject ${file.subject.id}`;
-  process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}${hit.visit.note ? ` (note: ${hit.visit.note.replace(/\s+/g, ' ').slice(0, 80)})` : ''}.\n`);
+  const what = `removing visit ${hit.index} (${hit.visit.date}) of subject ${sanitizeText(file.subject.id)}`;
+  process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}${hit.visit.note ? ` (note: ${sanitizeText(hit.visit.note.replace(/\s+/g, ' ').slice(0, 80))})` : ''}.\n`);
   if (!(await confirmChange(opts, `Remove visit ${hit.index}? A backup of the file is kept.`, what))) {
     process.stdout.write('Nothing changed.\n');
     return;

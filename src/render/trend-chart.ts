@@ -17,6 +17,7 @@
  * flows onto as many rows as it needs, measured with TEXT_EM_BOUND.
  */
 import { changeVerdict, type Verdict } from '../records/compare.js';
+import { escapeMarkup } from '../text/sanitize.js';
 import { formatNumber } from './format.js';
 import { niceTicks } from './pv-diagram.js';
 
@@ -66,7 +67,8 @@ const BAND = '#e8e8e8';
 const BAND_EDGE = '#8c8c8c';
 const REFERENCE = '#D55E00';
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+/** Escaping of user and report text for HTML and SVG: the one sanitiser (src/text/sanitize.ts). */
+const esc = escapeMarkup;
 const n2 = (x: number) => formatNumber(x, 2);
 
 export interface TrendBand {
