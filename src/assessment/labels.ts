@@ -5,7 +5,7 @@
  * comparison, case-conference report) says them through this file. Pure data.
  */
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
-import type { StrokeVolumeSource } from './compute.js';
+import type { StrokeVolumeSource } from './graph/index.js';
 import type { ErrorInputKey } from './error-model.js';
 import type { PesMethod, Rhythm } from './fields.js';
 import type { Flag } from './result.js';

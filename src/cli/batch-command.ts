@@ -180,9 +180,8 @@ async function streamRows(inPath: string, input: AsyncIterable<string>, output: 
     slots.push({ result, settled: Promise.resolve(result) });
     seq++;
     if (s.layout && !started) {
-      // The header has been read: say how clashing result columns are named, and tell the workers.
+      // The header has been read: tell the workers.
       started = true;
-      if (s.layout.renamed.length) info(`input columns share names with results; those results are in ${s.layout.renamed.join(', ')}`);
       for (const w of pool) w.header({ header: s.layout.header, dialect: s.layout.dialect });
     }
   };

@@ -10,12 +10,12 @@
  */
 import { dsvFormat } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
-import { computeResults } from '../assessment/compute.js';
+import { computeResults } from '../assessment/graph/index.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
-import { RESULT_KEYS, type Results } from '../assessment/compute.js';
+import { RESULT_KEYS, type Results } from '../assessment/graph/index.js';
 import type { Flag } from '../assessment/result.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
@@ -129,8 +129,6 @@ export interface BatchLayout {
   used: { field: number; key: NumericKey; unit: string; decimals: number }[];
   /** The output header: input columns, inputs as used, result columns, flags, notComputable, methodsVersion, error. */
   outputHeader: string[];
-  /** Result columns renamed `<key>_result` because an input column had that name. */
-  renamed: string[];
 }
 
 /** The comma-separated dialect of RFC 4180. */
@@ -179,7 +177,7 @@ export function planBatch(header: readonly string[], dialect: Dialect = COMMA): 
     // A result that reports the value used for an input (svUsed, efUsed) is that input's column as used already.
     .filter((u) => !resultNames.has(usedName(u.key)));
   const usedNames = used.map((u) => usedName(u.key));
-  const trailing = [...resultColumns(taken), ...trailingColumns(taken)];
+  const trailing = [...resultColumns(), ...trailingColumns()];
   const clash = [...usedNames, ...trailing.map((c) => c.name)].find((name) => taken.has(name.toLowerCase()));
   if (clash) {
     throw new InputError({ field: `column ${showValue(clash)}`, value: showValue(clash), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash} (rename or drop it)` });
@@ -190,7 +188,6 @@ export function planBatch(header: readonly string[], dialect: Dialect = COMMA): 
     recognised,
     used,
     outputHeader: [...header, ...usedNames, ...trailing.map((c) => c.name)],
-    renamed: trailing.filter((c) => c.name.endsWith('_result')).map((c) => c.name),
   };
 }
 

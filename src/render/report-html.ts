@@ -6,7 +6,7 @@
  */
 import { escapeMarkup } from '../text/sanitize.js';
 import type { Assessment } from '../assessment/assess.js';
-import type { ResultKey } from '../assessment/compute.js';
+import type { ResultKey } from '../assessment/graph/index.js';
 import type { Quantity } from '../assessment/result.js';
 import type { UncertaintyReport } from '../assessment/uncertainty.js';
 import { compareVisits, type Comparison } from '../records/compare.js';
@@ -22,7 +22,7 @@ export interface ReportVisit {
   index: number;
   date: string;
   note?: string;
-  /** Results carry `ci95` when the uncertainty was computed. */
+  /** Results carry `interval95` when the uncertainty was computed. */
   assessment: Assessment;
   uncertainty: UncertaintyReport | null;
 }
@@ -103,7 +103,7 @@ export function trendSpecs(m: ReportModel): TrendChartSpec[] {
       points: m.visits.map((v, i) => {
         const q = v.assessment.results[resultKey];
         const p: TrendChartSpec['points'][number] = { index: v.index, date: v.date, value: q.value };
-        if (q.ci95) p.ci95 = q.ci95;
+        if (q.interval95) p.interval95 = q.interval95;
         if (q.reason) p.reason = q.reason;
         const row = fromFirst[i]?.rows.find((r) => r.key === key);
         if (row) p.logLimit = row.lsc.logLimit;
@@ -130,9 +130,9 @@ export interface KeyRow {
 }
 
 function intervalText(q: Quantity): string {
-  if (q.value === null || !q.ci95) return '—';
+  if (q.value === null || !q.interval95) return '—';
   const d = decimalsFor(q.unit);
-  return `${formatNumber(q.ci95[0], d)} to ${formatNumber(q.ci95[1], d)}`;
+  return `${formatNumber(q.interval95[0], d)} to ${formatNumber(q.interval95[1], d)}`;
 }
 
 function pairText(pair: [number, number] | null, decimals: number): string {
@@ -150,8 +150,8 @@ export function keyRows(v: ReportVisit): KeyRow[] {
   });
   const rows: KeyRow[] = [
     q('End-systolic pressure Pes', r.pes),
-    q('Stroke volume used', r.sv),
-    q('Ejection fraction', r.ef),
+    q('Stroke volume used', r.svUsed),
+    q('Ejection fraction', r.efUsed),
     q('Arterial elastance Ea', r.ea),
     q('End-systolic elastance Ees', r.ees, `single-beat (Chen 2001); ${END_EST_WORDS}`),
     q('Coupling ratio Ea/Ees', r.eaEes, couplingNote(r.eaEes.value)),
@@ -189,8 +189,8 @@ export const VISIT_COLUMNS: { title: string; unit: string; nowrap?: boolean; cel
   { title: 'HR', unit: 'bpm', cell: (v) => formatNumber(v.assessment.inputs.hr, 0) },
   { title: 'SBP/DBP', unit: 'mmHg', cell: (v) => `${formatNumber(v.assessment.inputs.sbp, 0)}/${formatNumber(v.assessment.inputs.dbp, 0)}` },
   { title: 'EDV/ESV', unit: 'mL', cell: (v) => `${formatNumber(v.assessment.inputs.edv, 0)}/${formatNumber(v.assessment.inputs.esv, 0)}` },
-  { title: 'EF', unit: '%', cell: (v) => formatNumber(v.assessment.results.ef.value, 0) },
-  { title: 'SV', unit: 'mL', cell: (v) => formatNumber(v.assessment.results.sv.value, 0) },
+  { title: 'EF', unit: '%', cell: (v) => formatNumber(v.assessment.results.efUsed.value, 0) },
+  { title: 'SV', unit: 'mL', cell: (v) => formatNumber(v.assessment.results.svUsed.value, 0) },
   { title: 'Pes', unit: 'mmHg', cell: (v) => formatNumber(v.assessment.results.pes.value, 0) },
   { title: 'Ea', unit: 'mmHg/mL', cell: (v) => formatNumber(v.assessment.results.ea.value, 2) },
   { title: 'Ees', unit: 'mmHg/mL', cell: (v) => formatNumber(v.assessment.results.ees.value, 2) },

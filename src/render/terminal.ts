@@ -60,9 +60,9 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('Pulse pressure', r.pp);
 
   section('Flow and arterial load');
-  line('Stroke volume used', r.sv);
+  line('Stroke volume used', r.svUsed);
   if (r.svDoppler.value !== null) line('  volumetric SV', r.svVolumetric);
-  line('Ejection fraction used', r.ef);
+  line('Ejection fraction used', r.efUsed);
   if (a.inputs.ef !== null) line('  EF from volumes', r.efVolumes);
   line('Cardiac output', r.co);
   line('Cardiac index', r.ci);
@@ -80,8 +80,8 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
 
   section('Ventricular elastance (single-beat, Chen 2001)');
   line('Normalized time tNd', r.tNd);
-  line(END_AVG_LABEL, r.endAvg);
-  line(END_EST_LABEL, r.endEst);
+  line(END_AVG_LABEL, r.normalizedElastanceAvg);
+  line(END_EST_LABEL, r.normalizedElastanceEst);
   out.push(...wrapIndented(END_NOTE, s.width, '  ').map((l) => s.dim(l)));
   line('End-systolic elastance Ees', r.ees);
   line('  Ees indexed to BSA', r.eesIndexed);
@@ -122,7 +122,7 @@ export function renderVariants(a: Assessment, s: Style = plainStyle): string[] {
   for (const v of a.variants) {
     const text =
       `${pad(PES_METHOD_WORDS[v.pesMethod], 18)}` +
-      `${pad(STROKE_VOLUME_SOURCE_WORDS[v.strokeVolumeSource], 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.sv, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
+      `${pad(STROKE_VOLUME_SOURCE_WORDS[v.strokeVolumeSource], 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.svUsed, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
       `${pad(v.eesMethod, 12)}${padLeft(formatNumber(v.ees, 2), 7)}${padLeft(formatNumber(v.eaEes, 2), 8)}`;
     lines.push(v.isMain ? s.strong(text + '  ← reported') : text);
   }

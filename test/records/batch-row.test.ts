@@ -2,12 +2,12 @@ import { parse } from 'csv-parse/sync';
 import { csvParseRows } from 'd3-dsv';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
-import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { RESULT_KEYS, RESULT_UNITS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
 import { RecordSplitter } from '../../src/records/csv-records.js';
-import { CsvBytes, RESULT_UNITS, csvNumber, csvText, safeCell } from '../../src/render/csv.js';
+import { CsvBytes, csvNumber, csvText, safeCell } from '../../src/render/csv.js';
 
 const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
 
@@ -20,7 +20,6 @@ describe('batch rows', () => {
     // result key named as the JSON keys, then the trailing columns.
     const used = ['sbpUsed', 'dbpUsed', 'hrUsed', 'edvUsed', 'esvUsed', 'lvotDiameterUsed', 'lvotVtiUsed', 'pepUsed', 'etUsed'];
     expect(layout.outputHeader).toEqual([...HEADER, ...used, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
-    expect(layout.renamed).toEqual([]);
   });
 
   it('computes a row exactly as assess does', () => {
@@ -33,7 +32,7 @@ describe('batch rows', () => {
     const byName = Object.fromEntries(layout.outputHeader.map((h, i) => [h, out[i]]));
     for (const key of RESULT_KEYS) expect(byName[key]).toBe(csvNumber(a.results[key].value, a.results[key].unit));
     // Doppler SV from LVOT: π·(2.0/2)²·20 = 62.83 mL, which feeds Ea (Chen 2001 used Doppler SV).
-    expect(Number(byName.sv)).toBeCloseTo(Math.PI * 20, 2);
+    expect(Number(byName.svUsed)).toBeCloseTo(Math.PI * 20, 2);
     expect(byName.methodsVersion).toBe(METHODS_VERSION);
     expect(byName.error).toBe('');
   });
@@ -62,11 +61,11 @@ describe('batch rows', () => {
     expect(long[long.length - 1]).toMatch(/row has 15 cells but the header has 14/);
   });
 
-  it('renames a result column whose name an input column already uses (sv, ef), and says so', () => {
+  it('needs no renaming when inputs sv and ef are columns: the results are svUsed and efUsed', () => {
     const l = planBatch(['sbp', 'dbp', 'edv', 'esv', 'pep', 'et', 'sv', 'EF']);
-    expect(l.renamed).toEqual(['sv_result', 'ef_result']);
-    expect(l.outputHeader).toContain('sv_result');
-    expect(l.outputHeader.filter((h) => h === 'sv')).toHaveLength(1);
+    expect(l.outputHeader.filter((h) => h.toLowerCase() === 'sv' || h.toLowerCase() === 'ef')).toEqual(['sv', 'EF']);
+    expect(l.outputHeader.filter((h) => h === 'svUsed')).toHaveLength(1);
+    expect(l.outputHeader.filter((h) => h === 'efUsed')).toHaveLength(1);
   });
 
   it('refuses a header with repeated, empty or unusable names', () => {
@@ -74,7 +73,7 @@ describe('batch rows', () => {
     expect(() => planBatch(['sbp', '', 'dbp'])).toThrow(/column 2: missing; the header cell is empty/);
     expect(() => planBatch(['lvotVti', 'lvot-vti', 'sbp'])).toThrow(/names the same input as column "lvotVti"/);
     expect(() => planBatch(['name', 'value'])).toThrow(/no measurement columns recognised/);
-    expect(() => planBatch(['sbp', 'sv', 'sv_result'])).toThrow(/column "sv_result".*needs this name/);
+    expect(() => planBatch(['sbp', 'sv', 'svUsed'])).toThrow(/column "svUsed".*needs this name/);
     expect(() => planBatch(['sbp', 'dbp', 'sbpUsed'])).toThrow(/column "sbpUsed".*needs this name/);
   });
 });
@@ -143,7 +142,7 @@ describe('CSV cells', () => {
     expect(new TextDecoder().decode(out.take())).toBe(text);
   });
 
-  it('knows the unit of every result key (checked against computed results)', () => {
+  it('every result key has the unit its node declares (the graph is the one place units are decided)', () => {
     const a = assess(parseInputs({ sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, pep: 90, et: 290, height: 170, weight: 70 }));
     for (const key of RESULT_KEYS) expect(RESULT_UNITS[key], key).toBe(a.results[key].unit);
   });

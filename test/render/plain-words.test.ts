@@ -49,8 +49,8 @@ describe('summaries never contradict themselves (item 2)', () => {
   // Two visits; Pes within the least significant change but, by construction, outside the inputs' uncertainty.
   const c: Comparison = compareVisits(visit(), visit({ sbp: 156 }));
   const pes = c.rows.find((r) => r.key === 'pes')!;
-  pes.noise = { ci95: [0.5, 10], exceeds: true, source: 'test' };
-  for (const r of c.rows.filter((x) => x.key !== 'pes')) r.noise = { ci95: [-1, 1], exceeds: false, source: 'test' };
+  pes.noise = { interval95: [0.5, 10], exceeds: true, source: 'test' };
+  for (const r of c.rows.filter((x) => x.key !== 'pes')) r.noise = { interval95: [-1, 1], exceeds: false, source: 'test' };
   const lines = comparisonSummary(c);
 
   it('states the two yardsticks once each, what each says, and which one the verdict follows where they differ', () => {
@@ -267,7 +267,7 @@ describe('every label of every trend chart fits inside its SVG (item 6)', async 
     svg: renderTrendChart({
       key: 'eaEes', title: 'Coupling ratio Ea/Ees', unit: '', decimals: 3, selectedIndex: 8, bandSource: 'test',
       reference: { value: 1.2, label: 'cut-off 1.2 (Cheng 2008)' },
-      points: Array.from({ length: 8 }, (_, i) => ({ index: i + 1, date: `2024-0${i + 1}-15`, value: 0.8 + 0.25 * i, ci95: [0.6 + 0.2 * i, 1 + 0.3 * i] as [number, number], logLimit: 0.5 + 0.01 * i })),
+      points: Array.from({ length: 8 }, (_, i) => ({ index: i + 1, date: `2024-0${i + 1}-15`, value: 0.8 + 0.25 * i, interval95: [0.6 + 0.2 * i, 1 + 0.3 * i] as [number, number], logLimit: 0.5 + 0.01 * i })),
     }),
   });
 
