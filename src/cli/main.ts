@@ -45,7 +45,7 @@ export function buildProgram(): Command {
     .option('--no-input', 'never prompt: missing inputs are an error')
     .option('--json', 'print one JSON object (docs/json-output.md)')
     .option('--recheck', 'show the method variants side by side')
-    .option('--uncertainty', 'add 95 % ranges, variance shares per input and the method\'s own error, by Monte Carlo (docs/uncertainty.md)')
+    .option('--uncertainty', 'add 95 % intervals, variance shares per input and the method\'s own error, by Monte Carlo (docs/uncertainty.md)')
     .option('--draws <n>', 'Monte Carlo draws, 1000–500000 (default 20000); implies --uncertainty')
     .option('--seed <n>', 'seed of the Monte Carlo draws, 0–4294967295 (default 1); implies --uncertainty')
     .option('--svg <file>', 'also write the estimated pressure–volume diagram as SVG')

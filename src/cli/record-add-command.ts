@@ -5,7 +5,8 @@
  * for what rarely changes; elsewhere they are one error listing them all.
  */
 import { sanitizeText } from '../text/sanitize.js';
-import { assess } from '../assessment/assess.js';
+import { assess, type Assessment } from '../assessment/assess.js';
+import { flagWords, listInWords } from '../assessment/labels.js';
 import { missingRequired, type RawInputs } from '../assessment/inputs.js';
 import { VALVE_FLAGS } from '../assessment/fields.js';
 import { InputError, showValue } from '../errors.js';
@@ -142,6 +143,14 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   process.stdout.write(
     `${result.created ? 'Created' : 'Updated'} ${path}: subject ${sanitizeText(result.file.subject.id)}, visit ${index} of ${ordered.length} on ${date}.\n` +
       `  Ea ${formatQuantity(r.ea)}, Ees ${formatQuantity(r.ees)}, Ea/Ees ${formatQuantity(r.eaEes)} (methods ${assessment.methodsVersion}; research use only, not a diagnosis).\n` +
-      (assessment.flags.some((f) => f.level !== 'note') ? `  ${assessment.flags.filter((f) => f.level !== 'note').length} check(s) fired: see \`elastimate record show ${path}\`.\n` : ''),
+      checksFiredLine(assessment, path),
   );
+}
+
+/** The checks that fired for the new visit, named in plain words (notes left out), or nothing. */
+export function checksFiredLine(a: Assessment, path: string): string {
+  const fired = a.flags.filter((f) => f.level !== 'note');
+  if (fired.length === 0) return '';
+  const names = listInWords(fired.map((f) => flagWords(f.code, a.inputs.rhythm)));
+  return `  ${fired.length === 1 ? 'Check' : 'Checks'} that fired: ${names}; see \`elastimate record show ${path}\`.\n`;
 }

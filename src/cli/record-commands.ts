@@ -57,7 +57,7 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .description('the series as a table with the change from the previous visit')
     .argument('<file>', 'subject file')
     .option('--json', 'print one JSON object (docs/subject-file.md)')
-    .option('--uncertainty', 'add each visit\'s 95 % ranges and the noise of each change (docs/uncertainty.md)')
+    .option('--uncertainty', 'add each visit\'s 95 % intervals and the noise of each change (docs/uncertainty.md)')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runRecordShow } = await import('./record-show-command.js');
       await runRecordShow(file, opts);

@@ -3,7 +3,7 @@
  * confirmation, and the series views (also used by `demo`).
  */
 import { InputError, showValue } from '../errors.js';
-import { changesAlongSeries, compareVisits } from '../records/compare.js';
+import { attachNoiseChecks, changesAlongSeries, compareVisits } from '../records/compare.js';
 import { assessSeries, findVisit, type SeriesEntry } from '../records/series.js';
 import { BIRTH_YEAR_RANGE, VisitSchema, isCalendarDate, type SubjectFile, type Visit } from '../records/subject-schema.js';
 import { comparisonToJson, renderComparison, renderSeries, renderSeriesReferral, seriesToJson } from '../render/series.js';
@@ -126,7 +126,7 @@ export async function confirmChange(opts: Record<string, unknown>, question: str
 export async function printSeries(file: SubjectFile, opts: { json?: boolean; uncertainty?: boolean }): Promise<SeriesEntry[]> {
   let entries = assessSeries(file);
   const changes = changesAlongSeries(entries.map((e) => e.assessment));
-  // --uncertainty: 95 % ranges per visit and the noise of each change (docs/uncertainty.md).
+  // --uncertainty: 95 % intervals per visit and the noise of each change (docs/uncertainty.md).
   const uncertainty = opts.uncertainty ? await Promise.all([import('../assessment/uncertainty.js'), import('../render/uncertainty.js')]) : null;
   const ranges = uncertainty ? uncertainty[0].seriesUncertainty(entries, changes) : null;
   if (ranges) entries = ranges.entries;
@@ -154,11 +154,7 @@ export async function printComparison(file: SubjectFile, fromSelector: string, t
   const comparison = compareVisits(a.assessment, b.assessment);
   // The uncertainty of the inputs (docs/uncertainty.md): each change's 95 % interval and whether it exceeds that noise.
   const { changeNoiseChecks } = await import('../assessment/uncertainty.js');
-  const noise = changeNoiseChecks(a.assessment.inputs, b.assessment.inputs);
-  for (const row of comparison.rows) {
-    const check = noise[row.key];
-    if (check) row.noise = check;
-  }
+  attachNoiseChecks(comparison, changeNoiseChecks(a.assessment.inputs, b.assessment.inputs));
   const from = { index: a.index, date: a.date };
   const to = { index: b.index, date: b.date };
   if (opts.json) {

@@ -138,7 +138,7 @@ describe('record add / show / compare', () => {
     expect(text.stdout).toContain('visit 1 (2024-01-10) → visit 2 (2024-04-10)');
     expect(text.stdout).toMatch(/heart rate \(Δln HR\)\s+\+0\.223/);
     expect(text.stdout).toMatch(/resistance \(Δln TPR\)\s+-0\.090/);
-    expect(text.stdout).toMatch(/within measurement noise/);
+    expect(text.stdout).toMatch(/within the least significant change/);
     const json = JSON.parse(ok(await runCli(['record', 'compare', file(), '1', '2', '--json'])).stdout) as { format: string; methodsVersion: string; from: unknown; to: unknown; rows: { key: string; logChange: number; verdict: string; lsc: { logLimit: number } }[]; summary: string[] };
     expect(json.format).toBe('elastimate-comparison');
     expect(json.methodsVersion).toBe(METHODS_VERSION);
