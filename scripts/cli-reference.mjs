@@ -7,11 +7,11 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-const { buildProgram } = await import(join(root, 'dist', 'cli', 'main.js'));
+const { buildProgram, helpFooter } = await import(join(root, 'dist', 'cli', 'main.js'));
 
 function sections(cmd, path) {
   cmd.configureHelp({ helpWidth: 100 });
-  const out = [`## \`${path}\``, '', '```text', cmd.helpInformation().trimEnd(), '```', ''];
+  const out = [`## \`${path}\``, '', '```text', cmd.helpInformation().trimEnd() + helpFooter(cmd), '```', ''];
   for (const sub of cmd.commands) if (sub.name() !== 'help') out.push(...sections(sub, `${path} ${sub.name()}`));
   return out;
 }
@@ -20,7 +20,7 @@ const text = [
   '# Command-line reference',
   '',
   'Generated from the program\'s own help by `node scripts/cli-reference.mjs`; do not edit by hand.',
-  'Examples are in README.md; file formats in the other pages of docs/.',
+  'More examples are in README.md; file formats in the other pages of docs/.',
   '',
   'Exit codes: 0 success; 2 bad input (one message naming the field, the value and what is accepted);',
   '3 a file could not be written or changed (disk full, permission denied, read-only, immutable; nothing changed);',

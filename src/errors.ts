@@ -80,7 +80,24 @@ export function showValue(v: unknown): string {
   } catch {
     text = String(v);
   }
-  return sanitizeText(clipText(text));
+  return sanitizeText(clipText(text, closeOpenString));
+}
+
+/**
+ * JSON text cut short, with a string it was cut inside closed again (a dangling escape dropped),
+ * so the quotes of a clipped value still pair and the rest of the message reads as written.
+ */
+export function closeOpenString(json: string): string {
+  let inString = false;
+  let escaped = false;
+  for (let i = 0; i < json.length; i++) {
+    const c = json.charCodeAt(i);
+    if (escaped) escaped = false;
+    else if (c === 92 /* \ */) escaped = inString;
+    else if (c === 34 /* " */) inString = !inString;
+  }
+  if (!inString) return json;
+  return `${escaped ? json.slice(0, -1) : json}"`;
 }
 
 /**

@@ -35,6 +35,16 @@ describe('showValue', () => {
     for (const c of ['\u001b', '\u0000', '\u007f', '\u009b', '\u0085']) expect(showValue(`a${c}b`)).not.toMatch(/\p{Cc}/u);
   });
 
+  it('a clipped list or object that was cut inside a string closes that string, so quotes still pair (JSON.parse reads the head back)', () => {
+    for (let cut = 0; cut < 12; cut++) {
+      const value = ['x'.repeat(60 + cut) + '\\"q' + 'y'.repeat(100), 'undefined'];
+      const shown = showValue(value);
+      const head = shown.slice(0, shown.lastIndexOf('…'));
+      // An unbalanced head would swallow the rest of a message into a quoted value.
+      expect(() => JSON.parse(head + ']'), head).not.toThrow();
+    }
+  });
+
   it('keeps numbers and words as before', () => {
     expect(showValue(12.5)).toBe('12.5');
     expect(showValue(Number.POSITIVE_INFINITY)).toBe('a number too large to represent');

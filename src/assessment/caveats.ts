@@ -4,6 +4,7 @@
  */
 import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
+import { listInWords, methodLimitWords } from './labels.js';
 import type { Flag } from './result.js';
 
 export const STANDING_CAVEATS: readonly string[] = [
@@ -43,8 +44,8 @@ export function referralNote(inputs: VisitInputs, r: Results, flags: readonly Fl
   } else {
     parts.push('No finding crossed the common thresholds for EF, blood pressure or heart rate that this tool checks.');
   }
-  const limits = flags.filter((f) => f.level === 'caution').map((f) => f.code);
-  if (limits.length) parts.push(`Method limits apply (${limits.join(', ')}); interpret the elastance values with caution.`);
+  const limits = methodLimitWords([{ flags, rhythm: inputs.rhythm }]);
+  if (limits.length) parts.push(`Method limits apply (${listInWords(limits)}); interpret the elastance values with caution.`);
   parts.push('These are research estimates, not a diagnosis; please assess according to local protocols and your clinical judgement.');
   return parts.join(' ');
 }

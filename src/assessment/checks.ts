@@ -8,6 +8,7 @@ import { TAPSE_PASP_CUT_OFFS, TR_VELOCITY_SUSPICION_ABOVE } from '../physiology/
 import { rightAtrialPressureFromVenaCava } from '../physiology/right-atrial-pressure.js';
 import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
+import { RHYTHM_WORDS } from './labels.js';
 import type { Flag } from './result.js';
 
 /** Thresholds, each with its provenance. */
@@ -42,7 +43,7 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
 
   // Assumptions of the single-beat method (Chen 2001; common practice).
   if (inputs.rhythm !== 'sinus') {
-    add('rhythm', 'caution', m ? `Rhythm is ${inputs.rhythm}: the single-beat method assumes regular sinus rhythm; beat-to-beat variation makes one-beat intervals and volumes unreliable (average several beats at least).` : '');
+    add('rhythm', 'caution', m ? `Rhythm is ${RHYTHM_WORDS[inputs.rhythm]}: the single-beat method assumes regular sinus rhythm; beat-to-beat variation makes one-beat intervals and volumes unreliable (average several beats at least).` : '');
   }
   if (inputs.aorticStenosis) {
     add('aortic-stenosis', 'caution', m ? 'Significant aortic stenosis: cuff pressure understates LV systolic pressure, so Pes, Ea and Ees are underestimated.' : '');
@@ -67,7 +68,7 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
     add('ees-range', 'caution', m ? `Ees ${r.ees.value.toFixed(2)} mmHg/mL is outside ${THRESHOLDS.eesValidated.low}–${THRESHOLDS.eesValidated.high} mmHg/mL, the invasive range in which the method was validated.` : '');
   }
   if (r.v0.value !== null && r.v0.value < -50) {
-    add('v0-negative', 'note', m ? `Implied V0 ${r.v0.value.toFixed(0)} mL is strongly negative, as single-beat V0 often is in normal hearts; the ESPVR is a linear approximation far from the volume axis.` : '');
+    add('v0-negative', 'note', m ? `The end-systolic line's intercept V0(ES) ${r.v0.value.toFixed(0)} mL is strongly negative, as the single-beat intercept often is in normal hearts; the ESPVR is a linear approximation far from the volume axis.` : '');
   }
 
   // Consistency between measurements.

@@ -133,7 +133,7 @@ function energetics(r: Results, esv: number): Energetics {
   const sw = quantity(swValue, 'mmHg·mL', 'Pes × SV (elastance model, rectangle)', r.pes.reason ?? 'needs Pes and SV');
   const peOutcome = pes !== null && v0 !== null ? potentialEnergy(pes, esv, v0) : null;
   const pe = peOutcome
-    ? quantity(peOutcome.value, 'mmHg·mL', 'Pes·(ESV − V0)/2 (Suga; triangle under the end-systolic line)', peOutcome.reason)
+    ? quantity(peOutcome.value, 'mmHg·mL', 'Pes·(ESV − V0(ES))/2 (Suga; triangle under the end-systolic line)', peOutcome.reason)
     : quantity(null, 'mmHg·mL', undefined, r.v0.reason ?? 'needs Ees');
   const pvaValue = swValue !== null && pe.value !== null ? pressureVolumeArea(swValue, pe.value) : null;
   const pva = quantity(pvaValue, 'mmHg·mL', 'SW + PE (Suga 1990)', pe.reason ?? sw.reason);

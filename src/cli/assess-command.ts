@@ -14,9 +14,30 @@ export function canPrompt(opts: Record<string, unknown>): boolean {
 
 /** Raw inputs from `--input` and flags (flags win). */
 export function gatherRaw(opts: Record<string, unknown>, inputFile: string | undefined): RawInputs {
+  return gatherRawWithOverrides(opts, inputFile).raw;
+}
+
+function shownRaw(value: unknown): string {
+  return Array.isArray(value) ? value.map(String).join(', ') : String(value);
+}
+
+/**
+ * Raw inputs from `--input` and flags, and the inputs where a flag overrode a
+ * different value in the visit file, worded for the report:
+ * "from --hr; the visit file had 68".
+ */
+export function gatherRawWithOverrides(opts: Record<string, unknown>, inputFile: string | undefined): { raw: RawInputs; overrides: Record<string, string> } {
   // `--input ""` is a bad path, not an absent option: readVisitFile refuses it.
-  const fromFile = inputFile !== undefined ? readVisitFile(inputFile) : {};
-  return mergeRaw(fromFile, rawFromOptions(opts));
+  const fromFile: RawInputs = inputFile !== undefined ? readVisitFile(inputFile) : {};
+  const fromFlags = rawFromOptions(opts);
+  const overrides: Record<string, string> = {};
+  for (const [key, value] of Object.entries(fromFlags)) {
+    const before = (fromFile as Record<string, unknown>)[key];
+    if (value === undefined || before === undefined || key === 'errors' || shownRaw(before) === shownRaw(value)) continue;
+    const flag = NUMERIC_FIELDS.find((f) => f.key === key)?.flag ?? key.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`);
+    overrides[key] = `from --${flag}; the visit file had ${shownRaw(before)}`;
+  }
+  return { raw: mergeRaw(fromFile, fromFlags), overrides };
 }
 
 export function missingError(missing: string[], raw?: RawInputs): InputError {
@@ -55,9 +76,12 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   const draws = uncertainty && opts.draws !== undefined ? uncertainty.parseDraws(opts.draws) : undefined;
   const seed = uncertainty && opts.seed !== undefined ? uncertainty.parseSeed(opts.seed) : undefined;
   const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
-  const imported = sr ? sr.underGiven(await sr.gatherSr(opts), gatherRaw(opts, inputFile)) : null;
-  const raw = await completeRaw(imported ? imported.raw : gatherRaw(opts, inputFile), opts);
-  const inputSources = sr && imported ? sr.sourceTexts(imported.sources) : undefined;
+  const gathered = gatherRawWithOverrides(opts, inputFile);
+  const imported = sr ? sr.underGiven(await sr.gatherSr(opts), gathered.raw) : null;
+  const raw = await completeRaw(imported ? imported.raw : gathered.raw, opts);
+  // Where inputs came from when not simply typed: an SR import, or a flag that overrode the visit file.
+  const sources: Record<string, string> = { ...(sr && imported ? sr.sourceTexts(imported.sources) : {}), ...gathered.overrides };
+  const inputSources = Object.keys(sources).length > 0 ? sources : undefined;
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
@@ -67,7 +91,7 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
 }
 
-/** The report with 95 % ranges, variance shares and the method's own error (docs/uncertainty.md). */
+/** The report with 95 % intervals, variance shares and the method's own error (docs/uncertainty.md). */
 async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, inputSources?: Record<string, string>): Promise<void> {
   const view = await import('../render/uncertainty.js');
   if (opts.json === true) {

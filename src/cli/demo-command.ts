@@ -16,7 +16,7 @@ export async function runDemo(opts: Record<string, unknown>): Promise<void> {
     await printAssessment(result, { json: true });
     return;
   }
-  // The full single-visit report: 95 % ranges from the default error model, the recheck view and the sketch.
+  // The full single-visit report: 95 % intervals from the default error model, the recheck view and the sketch.
   const { assessUncertainty } = await import('../assessment/uncertainty.js');
   const { renderTerminalWithUncertainty } = await import('../render/uncertainty.js');
   const { printSketch } = await import('./diagram-options.js');

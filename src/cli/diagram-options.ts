@@ -5,6 +5,7 @@
  */
 import type { Assessment } from '../assessment/assess.js';
 import { renderPvDiagram } from '../render/pv-diagram.js';
+import { screenWidth } from '../render/style.js';
 import { renderPvSketch } from '../render/terminal-plot.js';
 import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 
@@ -22,6 +23,7 @@ export async function writeVisitSvg(a: Assessment, path: string, inputs: readonl
 /** The text drawing after the report; with --json it goes to stderr so stdout stays one JSON object. */
 export function printSketch(a: Assessment, json: boolean): void {
   if (!a.mechanics) return;
-  const text = ['', 'Pressure–volume sketch (estimated)', ...renderPvSketch([{ label: 'this visit', loop: a.mechanics.loop }]), ''].join('\n');
+  const stream = json ? process.stderr : process.stdout;
+  const text = ['', 'Pressure–volume sketch (estimated)', ...renderPvSketch([{ label: 'this visit', loop: a.mechanics.loop }], { width: screenWidth(stream) }), ''].join('\n');
   (json ? process.stderr : process.stdout).write(text + '\n');
 }

@@ -4,7 +4,8 @@
  * (render/csv.ts); `--out` is written by io/safe-write.ts (temporary file,
  * fsync, rename) and readable by its owner only.
  */
-import { assess } from '../assessment/assess.js';
+import { assess, type Assessment } from '../assessment/assess.js';
+import { compareVisits } from '../records/compare.js';
 import { STANDING_CAVEATS } from '../assessment/caveats.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError } from '../errors.js';
@@ -29,9 +30,12 @@ export function exportRows(paths: readonly string[]): { rows: CellValue[][]; fai
     const earlier = seen.get(id);
     if (earlier !== undefined) warn(`subject ${id} appears in both ${earlier} and ${path}; both are exported`);
     seen.set(id, path);
+    let first: Assessment | null = null;
     for (const { index, visit } of visitsInOrder(file)) {
       try {
-        rows.push(exportValues(id, index, visit.date, visit.note, assess(visitInputs(file, visit))));
+        const a = assess(visitInputs(file, visit));
+        if (index === 1) first = a;
+        rows.push(exportValues(id, index, visit.date, visit.note, a, first ? compareVisits(first, a) : null));
       } catch (err) {
         if (!(err instanceof InputError)) throw err;
         failed++;

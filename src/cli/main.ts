@@ -9,7 +9,10 @@ import { sanitizeText } from '../text/sanitize.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
+import { addExamples } from './help-examples.js';
 import { addSrOption } from './sr-option.js';
+
+export { helpFooter } from './help-examples.js';
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
@@ -42,7 +45,7 @@ export function buildProgram(): Command {
     .option('--no-input', 'never prompt: missing inputs are an error')
     .option('--json', 'print one JSON object (docs/json-output.md)')
     .option('--recheck', 'show the method variants side by side')
-    .option('--uncertainty', 'add 95 % ranges, variance shares per input and the method\'s own error, by Monte Carlo (docs/uncertainty.md)')
+    .option('--uncertainty', 'add 95 % intervals, variance shares per input and the method\'s own error, by Monte Carlo (docs/uncertainty.md)')
     .option('--draws <n>', 'Monte Carlo draws, 1000–500000 (default 20000); implies --uncertainty')
     .option('--seed <n>', 'seed of the Monte Carlo draws, 0–4294967295 (default 1); implies --uncertainty')
     .option('--svg <file>', 'also write the estimated pressure–volume diagram as SVG')
@@ -51,8 +54,13 @@ export function buildProgram(): Command {
       const { runAssess } = await import('./assess-command.js');
       await runAssess(opts, inputFileOf(cmd));
     });
+  addExamples(assess, [
+    'elastimate assess --sbp 138 --dbp 82 --hr 64 --edv 118 --esv 52 --pep 96 --et 292',
+    'elastimate assess --input cases/hypertension-trial.visit.json --uncertainty',
+    'elastimate assess --input cases/cardio-oncology.visit.json --json',
+  ]);
 
-  program
+  const demo = program
     .command('demo')
     .description('the full report for a built-in invented subject, no prompts')
     .option('--json', 'print JSON instead of the report')
@@ -60,10 +68,11 @@ export function buildProgram(): Command {
       const { runDemo } = await import('./demo-command.js');
       await runDemo(opts);
     });
+  addExamples(demo, ['elastimate demo', 'elastimate demo --json']);
 
   registerRecordCommands(program, inputFileOf);
 
-  program
+  const report = program
     .command('report')
     .description('the case-conference report of one visit in its series: one self-contained HTML page, or Markdown with SVG files')
     .argument('<subject-file>', 'subject file (docs/subject-file.md)')
@@ -76,7 +85,16 @@ export function buildProgram(): Command {
       const { runReport } = await import('./report-command.js');
       await runReport(file, opts);
     });
+  addExamples(report, [
+    'elastimate report cases/cardio-oncology.subject.json --out co203.html',
+    'elastimate report cases/cardio-oncology.subject.json --visit 2 --out co203-visit2.md',
+  ]);
 
+  addExamples(program, [
+    'elastimate demo',
+    'elastimate assess --input cases/hypertension-trial.visit.json',
+    'elastimate record show cases/cardio-oncology.subject.json',
+  ]);
   return program;
 }
 

@@ -1,12 +1,13 @@
 /** Writing results: JSON or the terminal report, with colour only on a terminal. */
 import type { Assessment } from '../assessment/assess.js';
 import { assessmentToJson, stringifySafe } from '../render/json.js';
-import { colourStyle, plainStyle, wantsColour, type Style } from '../render/style.js';
+import { colourStyle, plainStyle, screenWidth, wantsColour, type Style } from '../render/style.js';
 import { renderTerminal, type TerminalOptions } from '../render/terminal.js';
 import { toolVersion } from './package-info.js';
 
-export async function terminalStyle(stream: { isTTY?: boolean } = process.stdout): Promise<Style> {
-  return wantsColour(stream, process.env) ? colourStyle() : plainStyle;
+export async function terminalStyle(stream: { isTTY?: boolean; columns?: number } = process.stdout): Promise<Style> {
+  const width = screenWidth(stream);
+  return wantsColour(stream, process.env) ? colourStyle(width) : { ...plainStyle, width };
 }
 
 export async function printAssessment(a: Assessment, opts: { json?: boolean } & TerminalOptions): Promise<void> {

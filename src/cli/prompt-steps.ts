@@ -5,7 +5,7 @@
  * questions, and the review screen. Units, ranges and labels come from the
  * field registry (src/assessment/fields.ts); nothing here repeats them.
  */
-import { NUMERIC_FIELDS, RHYTHMS, VALVE_FLAGS, describeRange, fieldByKey, type NumericField, type NumericKey, type Rhythm, type ValveKey } from '../assessment/fields.js';
+import { NUMERIC_FIELDS, RHYTHMS, SEXES, VALVE_FLAGS, describeRange, fieldByKey, type NumericField, type NumericKey, type Rhythm, type Sex, type ValveKey } from '../assessment/fields.js';
 import { parseInputs, type RawInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
 import { ejectionFractionFromVolumes } from '../physiology/ejection-fraction.js';
@@ -46,7 +46,7 @@ export interface ManyQuestion<T> {
 }
 
 /** The questions in the order an echo report is read. */
-export const ASK_ORDER = ['rhythm', 'hr', 'edv', 'esv', 'ef', 'doppler', 'pep', 'et', 'valves', 'sbp', 'dbp', 'height', 'weight'] as const;
+export const ASK_ORDER = ['rhythm', 'hr', 'edv', 'esv', 'ef', 'doppler', 'pep', 'et', 'valves', 'sbp', 'dbp', 'height', 'weight', 'sex'] as const;
 export type StepId = (typeof ASK_ORDER)[number];
 
 /** Numeric steps asked one field at a time. */
@@ -232,7 +232,10 @@ export function impliedEfNote(draft: RawInputs): string | undefined {
   return `The volumes imply EF ${formatValue(ef, '%')} ((EDV − ESV)/EDV with EDV ${formatValue(internalValue('edv', draft), 'mL')}, ESV ${formatValue(internalValue('esv', draft), 'mL')}).`;
 }
 
-/** The reported-EF question: default is the implied EF; answering it unchanged keeps EF from the volumes. */
+/**
+ * The reported-EF question. Empty leaves EF to the volumes (their EF is named in the question, not
+ * offered as a default), so any value typed, even the one the volumes imply, is the reported EF.
+ */
 export function efQuestion(draft: RawInputs, scope: CheckScope): TextQuestion {
   const implied = impliedEjectionFraction(draft);
   const impliedText = implied === null ? undefined : formatNumber(implied, 0);
@@ -240,20 +243,17 @@ export function efQuestion(draft: RawInputs, scope: CheckScope): TextQuestion {
   const extra = !impliedText
     ? 'leave empty to use the EF from the volumes'
     : current === undefined
-      ? `Enter keeps the ${impliedText} % the volumes imply`
+      ? `leave empty to use the ${impliedText} % the volumes imply`
       : `the volumes imply ${impliedText} %`;
   const q = numberQuestion('ef', draft, { scope, optional: true, extra });
-  const def = current ?? impliedText;
-  if (def) q.default = def;
+  if (current !== undefined) q.default = current;
   return q;
 }
 
-/** Apply the EF answer: the implied default (or empty) leaves EF to the volumes. */
+/** Apply the EF answer: empty leaves EF to the volumes; a typed value is the reported EF. */
 export function withEfAnswer(draft: RawInputs, text: string): RawInputs {
-  const implied = impliedEjectionFraction(draft);
   const trimmed = text.trim();
-  if (trimmed === '' || (implied !== null && trimmed === formatNumber(implied, 0) && draft.ef === undefined)) return withEntry(draft, 'ef', undefined);
-  return withEntry(draft, 'ef', entryFromText(fieldByKey('ef'), trimmed));
+  return withEntry(draft, 'ef', trimmed === '' ? undefined : entryFromText(fieldByKey('ef'), trimmed));
 }
 
 // ---- Doppler stroke volume
@@ -326,6 +326,27 @@ export function rhythmQuestion(current: Rhythm | undefined): ChoiceQuestion<Rhyt
   };
 }
 
+// ---- sex (optional: the reference ranges use it)
+
+/** The answer that leaves sex unrecorded. */
+export const SEX_NOT_GIVEN = 'not-given';
+export type SexAnswer = Sex | typeof SEX_NOT_GIVEN;
+
+export function sexQuestion(current: Sex | undefined): ChoiceQuestion<SexAnswer> {
+  return {
+    message: 'Sex (optional; the reference ranges use it)',
+    choices: [...SEXES.map((s) => ({ name: s, value: s as SexAnswer })), { name: 'not given', value: SEX_NOT_GIVEN }],
+    default: current ?? SEX_NOT_GIVEN,
+  };
+}
+
+export function withSex(draft: RawInputs, answer: SexAnswer): RawInputs {
+  const next: RawInputs = { ...draft };
+  if (answer === SEX_NOT_GIVEN) delete next.sex;
+  else next.sex = answer;
+  return next;
+}
+
 export function valveQuestion(draft: RawInputs, suggestions: Partial<RawInputs>): ManyQuestion<ValveKey> {
   const source = valvesUntouched(draft) ? suggestions : draft;
   return {
@@ -347,7 +368,7 @@ export function valvesUntouched(draft: RawInputs): boolean {
 // ---------------------------------------------------------------------------
 // Review
 
-export type ReviewId = 'compute' | 'rhythm' | 'ef' | 'doppler' | 'valves' | NumericKey;
+export type ReviewId = 'compute' | 'rhythm' | 'ef' | 'doppler' | 'valves' | 'sex' | NumericKey;
 
 /** A field's value as entered, with its unit, and the converted value when typed with a unit. */
 export function displayEntry(key: NumericKey, draft: RawInputs): string {
@@ -405,6 +426,7 @@ export function reviewQuestion(draft: RawInputs, extra: readonly NumericKey[] = 
     else if (step === 'ef') choices.push({ name: `${fieldByKey('ef').label}: ${displayEf(draft)}`, value: 'ef' });
     else if (step === 'doppler') choices.push({ name: `Doppler stroke volume: ${displayDoppler(draft)}`, value: 'doppler' });
     else if (step === 'valves') choices.push({ name: `Valve and outflow findings: ${displayValves(draft)}`, value: 'valves' });
+    else if (step === 'sex') choices.push({ name: `Sex: ${draft.sex ?? 'not given'}`, value: 'sex' });
     else choices.push({ name: `${fieldByKey(step).label}: ${displayEntry(step, draft)}`, value: step });
   }
   // Other measurements given on the command line or in the file stay correctable.

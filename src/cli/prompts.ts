@@ -12,8 +12,8 @@ import type { RawInputs } from '../assessment/inputs.js';
 import {
   ASK_ORDER, INTRO, dopplerKeys, dopplerQuestion, dopplerSource, dopplerUntouched, defaultText, efQuestion,
   entryFromText, finalProblem, impliedEfNote, isNumberStep, needsAnswer, notesAfter, numberQuestion, reviewQuestion,
-  rhythmQuestion, valveQuestion, valvesUntouched, withDopplerSource, withEfAnswer, withEntry, withValves,
-  type CheckScope, type ChoiceQuestion, type ManyQuestion, type ReviewId, type StepId, type TextQuestion,
+  rhythmQuestion, sexQuestion, valveQuestion, withSex, valvesUntouched, withDopplerSource, withEfAnswer, withEntry, withValves,
+  type CheckScope, type ChoiceQuestion, type SexAnswer, type ManyQuestion, type ReviewId, type StepId, type TextQuestion,
 } from './prompt-steps.js';
 
 /** Where questions go: inquirer at the terminal, a script in tests. */
@@ -146,6 +146,9 @@ async function flowStep(ask: Asker, step: StepId, draft: RawInputs, suggestions:
     case 'valves':
       if (!valvesUntouched(draft)) return draft;
       return withValves(draft, await ask.checkbox(valveQuestion(draft, suggestions)));
+    case 'sex':
+      if (draft.sex !== undefined) return draft;
+      return withSex(draft, await ask.select<SexAnswer>(sexQuestion(suggestions.sex)));
   }
   return draft;
 }
@@ -175,6 +178,8 @@ async function correct(ask: Asker, id: Exclude<ReviewId, 'compute'>, draft: RawI
       return askDoppler(ask, draft, 'all', suggestions);
     case 'valves':
       return withValves(draft, await ask.checkbox(valveQuestion(draft, suggestions)));
+    case 'sex':
+      return withSex(draft, await ask.select<SexAnswer>(sexQuestion(draft.sex)));
     default:
       return askNumber(ask, id, draft, 'all', suggestions);
   }

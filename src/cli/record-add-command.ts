@@ -5,7 +5,8 @@
  * for what rarely changes; elsewhere they are one error listing them all.
  */
 import { sanitizeText } from '../text/sanitize.js';
-import { assess } from '../assessment/assess.js';
+import { assess, type Assessment } from '../assessment/assess.js';
+import { flagWords, listInWords } from '../assessment/labels.js';
 import { missingRequired, type RawInputs } from '../assessment/inputs.js';
 import { VALVE_FLAGS } from '../assessment/fields.js';
 import { InputError, showValue } from '../errors.js';
@@ -15,7 +16,7 @@ import { readSubjectFileIfExists, updateSubjectFile } from '../records/store.js'
 import { SubjectIdSchema, newSubjectFile, type SubjectFile, type SubjectInfo, type Visit } from '../records/subject-schema.js';
 import { formatQuantity } from '../render/format.js';
 import { canPrompt, gatherRaw, missingError } from './assess-command.js';
-import { info, parseBirthYear, parseDateOption, parseNoteOption, warn } from './record-common.js';
+import { allowSameDate, calendarDate, info, parseBirthYear, parseNoteOption, parseVisitDate, recheckSameDate, systemClock, warn, type Clock } from './record-common.js';
 
 /** What the previous visit offers as defaults: things that rarely change. */
 export function suggestionsFrom(file: SubjectFile | null): Partial<RawInputs> {
@@ -78,7 +79,7 @@ function visitOnly(completed: RawInputs, fromSubject: RawInputs, givenForVisit: 
   return out as RawInputs;
 }
 
-export async function runRecordAdd(path: string, opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
+export async function runRecordAdd(path: string, opts: Record<string, unknown>, inputFile: string | undefined, clock: Clock = systemClock): Promise<void> {
   const id = opts.subject === undefined ? undefined : checkSubjectId(opts.subject);
   const birthYear = parseBirthYear(opts.birthYear);
   const note = parseNoteOption(opts.note);
@@ -86,23 +87,34 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   // A DICOM SR (--sr): its values under the given ones; the visit date defaults to its study date.
   const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
   const imported = sr ? await sr.gatherSr(opts) : null;
-  const date = parseDateOption(opts.date ?? imported?.studyDate ?? undefined);
+  const date = parseVisitDate(opts.date ?? imported?.studyDate ?? undefined, calendarDate(clock()));
   const { raw, sources } = sr ? sr.underGiven(imported, given) : { raw: given, sources: {} };
   const sex = raw.sex;
   delete raw.sex;
 
   const existing = readSubjectFileIfExists(path);
-  const subject = subjectAfter(existing?.subject ?? null, id, sex, birthYear, path);
+  let subject = subjectAfter(existing?.subject ?? null, id, sex, birthYear, path);
   if (!existing || id !== undefined) for (const w of pseudonymWarnings(subject.id)) warn(w);
+  // Asked before the measurements, so nobody types a whole visit only to find the date was a slip.
+  const sameDate = await allowSameDate(opts, existing?.visits ?? [], date);
+  if (!sameDate) {
+    process.stdout.write('Nothing changed.\n');
+    return;
+  }
 
   // What the subject contributes (height, sex, age), under what this visit gives.
-  const fromSubject = visitRawInputs(subject, { date, inputs: {} });
+  let fromSubject = visitRawInputs(subject, { date, inputs: {} });
   let merged: RawInputs = { ...fromSubject, ...raw };
   const missing = missingRequired(merged);
   if (missing.length > 0) {
     if (!canPrompt(opts)) throw missingError(missing);
     const { collectInteractively } = await import('./prompts.js');
     merged = await collectInteractively(merged, { suggestions: suggestionsFrom(existing) });
+    // Sex answered at the prompts describes the subject, as --sex does.
+    if (merged.sex !== undefined && subject.sex === undefined) {
+      subject = subjectAfter(existing?.subject ?? null, subject.id, merged.sex, birthYear, path);
+      fromSubject = visitRawInputs(subject, { date, inputs: {} });
+    }
   }
   const inputs = tidyEntered(visitOnly(merged, fromSubject, raw));
   const kept = sr ? sr.sourcesStillUsed(sources, imported, inputs) : {};
@@ -115,10 +127,11 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
     (current) => {
       // Re-check against what is on disk now: another process may have written meanwhile.
       const base = current ?? newSubjectFile(subject);
+      recheckSameDate(opts, existing?.visits ?? [], base.visits, date);
       const updatedSubject = subjectAfter(current ? current.subject : null, subject.id, subject.sex, subject.birthYear, path);
       return insertVisit({ ...base, subject: updatedSubject }, visit);
     },
-    { now: new Date() },
+    { now: clock() },
   );
 
   const ordered = visitsInOrder(result.file);
@@ -130,6 +143,14 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   process.stdout.write(
     `${result.created ? 'Created' : 'Updated'} ${path}: subject ${sanitizeText(result.file.subject.id)}, visit ${index} of ${ordered.length} on ${date}.\n` +
       `  Ea ${formatQuantity(r.ea)}, Ees ${formatQuantity(r.ees)}, Ea/Ees ${formatQuantity(r.eaEes)} (methods ${assessment.methodsVersion}; research use only, not a diagnosis).\n` +
-      (assessment.flags.some((f) => f.level !== 'note') ? `  ${assessment.flags.filter((f) => f.level !== 'note').length} check(s) fired: see \`elastimate record show ${path}\`.\n` : ''),
+      checksFiredLine(assessment, path),
   );
+}
+
+/** The checks that fired for the new visit, named in plain words (notes left out), or nothing. */
+export function checksFiredLine(a: Assessment, path: string): string {
+  const fired = a.flags.filter((f) => f.level !== 'note');
+  if (fired.length === 0) return '';
+  const names = listInWords(fired.map((f) => flagWords(f.code, a.inputs.rhythm)));
+  return `  ${fired.length === 1 ? 'Check' : 'Checks'} that fired: ${names}; see \`elastimate record show ${path}\`.\n`;
 }

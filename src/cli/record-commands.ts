@@ -4,7 +4,11 @@
  */
 import type { Command } from 'commander';
 import { addMeasurementOptions } from './measurement-options.js';
+import { addExamples } from './help-examples.js';
 import { addSrOption } from './sr-option.js';
+
+/** The flag that says a second visit on a date that already has one is intended. */
+export const SAME_DATE_FLAG = '--same-date';
 
 function collect(value: string, previous: string[] | undefined): string[] {
   return [...(previous ?? []), value];
@@ -14,6 +18,11 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
   const record = program
     .command('record')
     .description('follow-up series of one subject in a subject file (docs/subject-file.md)');
+  addExamples(record, [
+    'elastimate record add co203.json --subject CO-203 --date 2024-09-02 --input cases/cardio-oncology.visit.json',
+    'elastimate record show cases/cardio-oncology.subject.json',
+    'elastimate record compare cases/cardio-oncology.subject.json 1 3',
+  ]);
 
   const add = record
     .command('add')
@@ -28,24 +37,38 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .option('--note <text>', 'free-text note for this visit (no names)')
     .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
-    .addHelpText('after', '\n--sex and --birth-year describe the subject and are stored once; other flags belong to this visit.')
+    .option(`${SAME_DATE_FLAG}`, 'a second visit on a date that already has one is intended (asked on a terminal, refused elsewhere without this flag)')
     .action(async (file: string, opts: Record<string, unknown>, cmd: Command) => {
       const { runRecordAdd } = await import('./record-add-command.js');
       await runRecordAdd(file, opts, inputFileOf(cmd));
     });
+  addExamples(
+    add,
+    [
+      'elastimate record add co203.json --subject CO-203 --date 2024-09-02 --input cases/cardio-oncology.visit.json --note "after cycle 4"',
+      'elastimate record add co203.json --date 2024-12-02 --sbp 128 --dbp 76 --hr 70 --edv 112 --esv 50 --pep 98 --et 286',
+      'elastimate record add co203.json --date 2025-03-03',
+    ],
+    '--sex and --birth-year describe the subject and are stored once; other flags\nbelong to this visit. The visit date may not be after today. On a terminal,\nmissing inputs are asked for (the last example).',
+  );
 
-  record
+  const show = record
     .command('show')
     .description('the series as a table with the change from the previous visit')
     .argument('<file>', 'subject file')
     .option('--json', 'print one JSON object (docs/subject-file.md)')
-    .option('--uncertainty', 'add each visit\'s 95 % ranges and the noise of each change (docs/uncertainty.md)')
+    .option('--uncertainty', 'add each visit\'s 95 % intervals and the noise of each change (docs/uncertainty.md)')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runRecordShow } = await import('./record-show-command.js');
       await runRecordShow(file, opts);
     });
+  addExamples(show, [
+    'elastimate record show cases/cardio-oncology.subject.json',
+    'elastimate record show cases/cardio-oncology.subject.json --uncertainty',
+    'elastimate record show cases/cardio-oncology.subject.json --json',
+  ]);
 
-  record
+  const compare = record
     .command('compare')
     .description('the change between two visits, explained and judged against measurement noise')
     .argument('<file>', 'subject file')
@@ -56,6 +79,10 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
       const { runRecordCompare } = await import('./record-show-command.js');
       await runRecordCompare(file, from, to, opts);
     });
+  addExamples(compare, [
+    'elastimate record compare cases/cardio-oncology.subject.json 1 3',
+    'elastimate record compare cases/cardio-oncology.subject.json 2023-09-04 3 --json',
+  ]);
 
   const edit = record
     .command('edit')
@@ -69,13 +96,18 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .option('--unset <input>', 'remove an input from the visit, e.g. --unset sv (repeatable)', collect)
     .option('--birth-year <year>', 'subject\'s birth year')
     .option('--input <file>', 'visit file in JSON (or - for standard input) whose values replace the visit\'s; flags override it')
+    .option(`${SAME_DATE_FLAG}`, 'moving the visit to a date that already has one is intended')
     .option('--yes', 'do not ask for confirmation')
     .action(async (file: string, visit: string, opts: Record<string, unknown>, cmd: Command) => {
       const { runRecordEdit } = await import('./record-edit-command.js');
       await runRecordEdit(file, visit, opts, inputFileOf(cmd));
     });
+  addExamples(edit, [
+    'elastimate record edit co203.json 2024-09-02 --hr 70',
+    'elastimate record edit co203.json 2 --unset sv --note "Doppler not reliable" --yes',
+  ]);
 
-  record
+  const remove = record
     .command('remove')
     .description('remove one visit (asks first; keeps a backup of the file as it was)')
     .argument('<file>', 'subject file')
@@ -85,8 +117,9 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
       const { runRecordRemove } = await import('./record-edit-command.js');
       await runRecordRemove(file, visit, opts);
     });
+  addExamples(remove, ['elastimate record remove co203.json 3', 'elastimate record remove co203.json 2024-12-02 --yes']);
 
-  program
+  const exportCommand = program
     .command('export')
     .description('every visit of the subject files as a tidy CSV table (docs/csv-export.md)')
     .argument('<files...>', 'subject files')
@@ -96,8 +129,13 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
       const { runExport } = await import('./export-command.js');
       await runExport(files, opts);
     });
+  addExamples(exportCommand, [
+    'elastimate export cases/cardio-oncology.subject.json',
+    'elastimate export cases/*.subject.json --out cohort.csv',
+    'elastimate export cases/*.subject.json --json',
+  ]);
 
-  program
+  const srCohort = program
     .command('sr-cohort')
     .description('a folder of DICOM SR files of echo studies as a cohort CSV for batch, one row per study (docs/sr-import.md)')
     .argument('<folder>', 'folder of SR files (one or more per study)')
@@ -107,8 +145,9 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
       const { runSrCohort } = await import('./sr-cohort-command.js');
       await runSrCohort(folder, opts);
     });
+  addExamples(srCohort, ['elastimate sr-cohort cases/sr', 'elastimate sr-cohort cases/sr --ids ids.csv --out sr-cohort.csv']);
 
-  program
+  const batch = program
     .command('batch')
     .description('results for every row of a cohort CSV, streamed (docs/batch.md)')
     .argument('<in.csv>', 'CSV with a header row, or - for standard input; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')
@@ -117,4 +156,5 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
       const { runBatch } = await import('./batch-command.js');
       await runBatch(file, opts);
     });
+  addExamples(batch, ['elastimate batch cases/hypertension-cohort.csv', 'elastimate batch cases/hypertension-cohort.csv --out results.csv']);
 }

@@ -11,7 +11,7 @@ import { findVisit, insertVisit, tidyEntered, visitInputs } from '../records/ser
 import { readSubjectFile, updateSubjectFile } from '../records/store.js';
 import type { SubjectFile, SubjectInfo, Visit } from '../records/subject-schema.js';
 import { gatherRaw } from './assess-command.js';
-import { confirmChange, info, parseBirthYear, parseDateOption, parseNoteOption } from './record-common.js';
+import { allowSameDate, calendarDate, confirmChange, info, parseBirthYear, parseNoteOption, parseVisitDate, recheckSameDate, systemClock, type Clock } from './record-common.js';
 
 const INPUT_KEYS = Object.keys(RawInputsSchema.shape) as (keyof RawInputs)[];
 
@@ -42,7 +42,7 @@ function positionOf(current: SubjectFile | null, visit: Visit, path: string): nu
   return at;
 }
 
-export async function runRecordEdit(path: string, selector: string, opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
+export async function runRecordEdit(path: string, selector: string, opts: Record<string, unknown>, inputFile: string | undefined, clock: Clock = systemClock): Promise<void> {
   const file = readSubjectFile(path);
   const hit = findVisit(file, selector);
   const given = gatherRaw(opts, inputFile);
@@ -50,7 +50,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   delete given.sex;
   const birthYear = parseBirthYear(opts.birthYear);
   const unset = ((opts.unset as string[] | undefined) ?? []).map(unsetKey);
-  const date = opts.date !== undefined ? parseDateOption(opts.date) : hit.visit.date;
+  const date = opts.date !== undefined ? parseVisitDate(opts.date, calendarDate(clock())) : hit.visit.date;
   const note = opts.note !== undefined ? parseNoteOption(opts.note) : hit.visit.note;
 
   const inputs: Record<string, unknown> = { ...hit.visit.inputs, ...given };
@@ -81,6 +81,11 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   // The edited visit must still compute, with the subject's data underneath.
   visitInputs(subject, edited);
 
+  const others = file.visits.filter((_v, i) => i !== hit.position);
+  if (date !== hit.visit.date && !(await allowSameDate(opts, others, date))) {
+    process.stdout.write('Nothing changed.\n');
+    return;
+  }
   const what = `changing visit ${hit.index} (${hit.visit.date}) of subject ${sanitizeText(file.subject.id)}`;
   process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}:\n${changes.map((c) => `  ${c}`).join('\n')}\n`);
   if (!(await confirmChange(opts, 'Save this change? A backup of the file is kept.', what))) {
@@ -92,9 +97,11 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
     (current) => {
       const at = positionOf(current, hit.visit, path);
       const visits = current!.visits.filter((_v, i) => i !== at);
+      // Another process may have put a visit on the new date meanwhile.
+      if (date !== hit.visit.date) recheckSameDate(opts, others, visits, date);
       return insertVisit({ ...current!, subject: { ...current!.subject, ...(sex !== undefined ? { sex } : {}), ...(birthYear !== undefined ? { birthYear } : {}) }, visits }, edited);
     },
-    { now: new Date(), backup: true },
+    { now: clock(), backup: true },
   );
   process.stdout.write(`Saved ${path}.\n`);
   for (const b of result.backups) info(`the file as it was is kept as ${b}`);

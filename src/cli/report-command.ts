@@ -26,7 +26,7 @@ export interface ReportModelOptions {
 
 /** Everything the report shows, computed from the subject file. Pure. */
 export async function buildReportModel(file: SubjectFile, options: ReportModelOptions): Promise<ReportModel> {
-  const [{ assessSeries, findVisit }, { compareVisits }, uncertainty] = await Promise.all([
+  const [{ assessSeries, findVisit }, { attachNoiseChecks, compareVisits }, uncertainty] = await Promise.all([
     import('../records/series.js'),
     import('../records/compare.js'),
     import('../assessment/uncertainty.js'),
@@ -58,29 +58,27 @@ export async function buildReportModel(file: SubjectFile, options: ReportModelOp
     const from = series[compared]!;
     const to = series[selected]!;
     comparison = compareVisits(from.assessment, to.assessment);
-    const noise = uncertainty.changeUncertainty(from.assessment.inputs, to.assessment.inputs, runOptions);
-    for (const row of comparison.rows) {
-      const n = (noise.changes as Record<string, (typeof noise.changes)['ea'] | undefined>)[row.key];
-      if (n && n.interval95 && n.exceeds !== null) row.noise = { interval95: n.interval95, exceeds: n.exceeds, source: n.source };
-    }
+    attachNoiseChecks(comparison, uncertainty.changeNoiseChecks(from.assessment.inputs, to.assessment.inputs, runOptions));
   }
-
-  // The least significant change at the first visit, exactly as `record compare` judges a change from it.
-  const baseline = compareVisits(series[0]!.assessment, series[0]!.assessment);
-  const lsc: ReportModel['lsc'] = {};
-  for (const row of baseline.rows) if (row.key === 'ea' || row.key === 'ees' || row.key === 'eaEes') lsc[row.key] = row.lsc;
 
   const first = visits[selected]!.uncertainty;
   const uncertaintyNote = first
     ? `Intervals: Monte Carlo over input measurement error, ${first.draws.toLocaleString('en-US')} draws, seed ${first.seed} (docs/uncertainty.md); the method's own error against invasive Ees is shown separately.`
     : 'No intervals were computed.';
 
-  return { subject: file.subject, visits, selected, compared, comparison, lsc, generated: options.generated, toolVersion: options.toolVersion, uncertaintyNote };
+  return { subject: file.subject, visits, selected, compared, comparison, generated: options.generated, toolVersion: options.toolVersion, uncertaintyNote };
 }
 
+/** The file-name endings of each report format. */
+export const REPORT_EXTENSIONS: Record<ReportFormat, readonly string[]> = { html: ['.html', '.htm'], md: ['.md', '.markdown'] };
+
+/** --format when given, else the format the --out file name ends in (HTML when it names none). */
 export function reportFormat(opts: Record<string, unknown>): ReportFormat {
   const raw = opts.format;
-  if (raw === undefined) return typeof opts.out === 'string' && extname(opts.out).toLowerCase() === '.md' ? 'md' : 'html';
+  if (raw === undefined) {
+    const ending = typeof opts.out === 'string' ? extname(opts.out).toLowerCase() : '';
+    return REPORT_EXTENSIONS.md.includes(ending) ? 'md' : 'html';
+  }
   if (raw === 'html' || raw === 'md') return raw;
   throw new InputError({ field: '--format', value: showValue(raw), accepted: 'html or md' });
 }
@@ -95,7 +93,9 @@ export async function runReport(subjectPath: string, opts: Record<string, unknow
     throw new InputError({ field: '--out', value: '', reason: 'required', accepted: format === 'md' ? 'a file path ending in .md, e.g. --out report.md' : 'a file path ending in .html, e.g. --out report.html' });
   }
   const inputs = [subjectPath];
-  const out = checkOutputPath(opts.out, { option: '--out', extensions: format === 'md' ? ['.md', '.markdown'] : ['.html', '.htm'], inputs });
+  // Without --format the file name chooses the format, so every ending of every format is accepted.
+  const extensions = opts.format === undefined ? [...REPORT_EXTENSIONS.html, ...REPORT_EXTENSIONS.md] : REPORT_EXTENSIONS[format];
+  const out = checkOutputPath(opts.out, { option: '--out', extensions, inputs });
   const parsed: { draws?: number; seed?: number } = {};
   if (opts.draws !== undefined || opts.seed !== undefined) {
     const { parseDraws, parseSeed } = await import('../assessment/uncertainty.js');

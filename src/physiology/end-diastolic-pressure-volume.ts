@@ -2,9 +2,11 @@
  * The end-diastolic pressure–volume relation (EDPVR) from one measured point,
  * by the single-beat method of Klotz S et al., "Single-beat estimation of
  * end-diastolic pressure-volume relationship: a novel method with potential
- * for noninvasive application", Am J Physiol Heart Circ Physiol 2006;291:H403
- * (from memory; the constants were not found in searchable text, see
- * docs/methods-verification.md §5).
+ * for noninvasive application", Am J Physiol Heart Circ Physiol 2006;291:H403,
+ * and the authors' protocol, Klotz S, Dickstein ML, Burkhoff D, Nat Protoc
+ * 2007;2:2152. The constants and formulas below are as quoted by a secondary
+ * open implementation that cites the protocol; the papers' own text was not
+ * read (docs/methods-verification.md §5).
  *
  * The method rests on one empirical finding: normalised for the volume at
  * which the curve starts (V0) and the volume at 30 mmHg (V30), human EDPVRs
@@ -28,10 +30,9 @@
  *
  *   β = ln(EDP/15) / ln(EDV/V15),   α = EDP / EDV^β.
  *
- * This branch is how openly published implementations of the authors'
- * step-by-step protocol handle high pressures (Klotz S, Dickstein ML,
- * Burkhoff D, Nat Protoc 2007;2:2152, seen only second-hand, not verified
- * against the paper). Its own singular point (V15 = EDV) sits at
+ * This is the method's own branch for high pressures (Klotz 2006; Klotz,
+ * Dickstein & Burkhoff, Nat Protoc 2007), as quoted by the same secondary
+ * implementation. Its own singular point (V15 = EDV) sits at
  * EDP = An·0.8^Bn ≈ 15.0 mmHg, far below the 22-mmHg switch, so neither branch
  * is ever used near its singularity. The two branches do not join smoothly at
  * 22 mmHg (β jumps by about a fifth); that is a property of the method, and
@@ -43,7 +44,7 @@
  * At EDP 22 mmHg β is 6.76 by the 30-mmHg anchor and 5.37 by the 15-mmHg one.
  */
 
-/** Normalised-curve constants of Klotz 2006 (from memory). */
+/** Normalised-curve constants of Klotz 2006 (as quoted by a secondary implementation citing Klotz 2007). */
 export const KLOTZ_AN_MMHG = 27.78;
 export const KLOTZ_BN = 2.76;
 /** Above this end-diastolic pressure the 15-mmHg anchor replaces the 30-mmHg one. */

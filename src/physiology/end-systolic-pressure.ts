@@ -2,8 +2,11 @@
  * End-systolic pressure (Pes) from the arm cuff.
  *
  * Pes ≈ 0.9 × brachial SBP  (mmHg → mmHg)
- * Source: Kelly RP et al., Circulation 1992;86:513–521; the estimate on which
- * the single-beat Ees method (Chen CH et al., JACC 2001;38:2028) was built.
+ * The factor is stated in the Chen 2001 abstract (Chen CH et al., JACC
+ * 2001;38:2028: "P(s) × 0.9") and in later papers (e.g. Cardiovasc Ultrasound
+ * 2010;8:48, table of formulas). Kelly RP et al., Circulation 1992;86:513
+ * validated Ea = Pes/SV and simple estimates from arm pressures, but its
+ * abstract does not state the factor (method notes §11).
  * Worked example: SBP 120 mmHg → Pes 108 mmHg.
  */
 export function endSystolicPressureFromSystolic(systolic: number): number {

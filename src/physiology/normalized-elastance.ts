@@ -4,8 +4,9 @@ import { computed, notComputable, type Outcome } from './outcome.js';
  * Group-averaged normalized elastance at the onset of ejection:
  * ENd(avg) = Σ aᵢ · tNdⁱ, i = 0…7  (dimensionless), with
  * a = 0.35695, −7.2266, 74.249, −307.39, 684.54, −856.92, 571.95, −159.1.
- * Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034 (coefficients as recorded
- * in the project's method notes; see docs/methods.md for their provenance).
+ * Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034. The coefficients are as
+ * quoted by two independent secondary implementations that cite Chen 2001; the
+ * paper's own table was not read (docs/methods-verification.md §1).
  * Worked example (computed here): tNd 0.23684 → 0.33614.
  */
 export const NORMALIZED_ELASTANCE_COEFFICIENTS = [0.35695, -7.2266, 74.249, -307.39, 684.54, -856.92, 571.95, -159.1] as const;
@@ -35,7 +36,9 @@ export function normalizedElastanceAverage(tNd: number): Outcome {
 /**
  * Subject-specific normalized elastance at the onset of ejection:
  * ENd(est) = 0.0275 − 0.165·EF + 0.3656·(DBP / Pes) + 0.515·ENd(avg)
- * (EF as a fraction; DBP and Pes in mmHg). Chen CH et al., JACC 2001;38:2028.
+ * (EF as a fraction; DBP and Pes in mmHg, Pes = 0.9·SBP). Chen CH et al., JACC
+ * 2001;38:2028; coefficients as quoted by two independent secondary
+ * implementations that cite it (the paper's own table was not read).
  * Worked example (computed here): EF 0.60, DBP 80, Pes 108, ENd(avg) 0.33614 → 0.37243.
  */
 export function normalizedElastanceEstimate(

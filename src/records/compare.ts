@@ -3,7 +3,7 @@
  * noise. Pure: two assessments in, a Comparison out; renderers word it.
  *
  * Attribution (exact identities on the log scale, so the parts add up):
- * - Arterial load. Ea ≈ TPR × HR / 60 (the resistance view; Sunagawa 1983,
+ * - Arterial load. Ea ≈ TPR × HR / 60 (the R/T estimate; Sunagawa 1983,
  *   Kelly 1992), so
  *     ln Ea = ln TPR + ln HR − ln 60 + ln(Ea / (TPR·HR/60))
  *   and Δln Ea = Δln HR (heart-rate part) + Δln TPR (resistance part)
@@ -27,6 +27,7 @@
  * renderers show it beside the LSC judgement.
  */
 import type { Assessment } from '../assessment/assess.js';
+import { PES_METHOD_WORDS, STROKE_VOLUME_SOURCE_WORDS, listInWords, methodLimitWords } from '../assessment/labels.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 
 /** 1.96·√2, rounded as usually quoted: the repeatability coefficient per unit within-subject SD. */
@@ -63,7 +64,7 @@ export type Verdict = 'beyond-noise' | 'within-noise' | 'not-computable';
 /** The 95 % interval of the change (to − from, in the row's unit) from the uncertainty of the inputs. */
 export interface NoiseCheck {
   interval95: [number, number];
-  /** True when the interval excludes no change. */
+  /** True when the interval excludes zero (the change is larger than the inputs' uncertainty). */
   exceeds: boolean;
   source: string;
 }
@@ -114,6 +115,25 @@ export interface Comparison {
   cautions: string[];
 }
 
+/**
+ * The one rule for "is this change beyond noise?", used by every view
+ * (record compare and show, the trend charts and their bands, the reports,
+ * the CSV): beyond when |Δln x| exceeds the least significant change.
+ */
+export function changeVerdict(logChange: number | null, logLimit: number): Verdict {
+  if (logChange === null || !Number.isFinite(logChange)) return 'not-computable';
+  return Math.abs(logChange) > logLimit ? 'beyond-noise' : 'within-noise';
+}
+
+/** Attach the input-uncertainty check of each change (from the uncertainty module) to its row. */
+export function attachNoiseChecks(c: Comparison, checks: Partial<Record<ChangeKey, NoiseCheck>>): Comparison {
+  for (const row of c.rows) {
+    const check = checks[row.key];
+    if (check) row.noise = check;
+  }
+  return c;
+}
+
 export function leastSignificantChange(cv: number, source: string): LeastSignificantChange {
   const logLimit = LSC_FACTOR * cv;
   return { cv, logLimit, percentUp: 100 * (Math.exp(logLimit) - 1), percentDown: 100 * (1 - Math.exp(-logLimit)), source };
@@ -139,7 +159,7 @@ function changeRow(key: ChangeKey, label: string, unit: string, from: number | n
     logChange,
     percentChange: logChange !== null ? 100 * (Math.exp(logChange) - 1) : null,
     lsc,
-    verdict: logChange === null ? 'not-computable' : Math.abs(logChange) > lsc.logLimit ? 'beyond-noise' : 'within-noise',
+    verdict: changeVerdict(logChange, lsc.logLimit),
   };
   if (logChange === null) row.reason = reason ?? 'not computable at one of the visits';
   return row;
@@ -182,16 +202,13 @@ export function compareVisits(a: Assessment, b: Assessment): Comparison {
 
   const cautions: string[] = [];
   if (a.choice.strokeVolumeSource !== b.choice.strokeVolumeSource) {
-    cautions.push(`Stroke volume comes from different sources (${a.choice.strokeVolumeSource} at the first visit, ${b.choice.strokeVolumeSource} at the second): part of any change in Ea, Ees and Pes parts may be method, not physiology.`);
+    cautions.push(`Stroke volume comes from different sources (${STROKE_VOLUME_SOURCE_WORDS[a.choice.strokeVolumeSource]} at the first visit, ${STROKE_VOLUME_SOURCE_WORDS[b.choice.strokeVolumeSource]} at the second): part of any change in Ea and Ees may be method, not physiology.`);
   }
   if (a.choice.pesMethod !== b.choice.pesMethod) {
-    cautions.push(`End-systolic pressure was estimated differently (${a.choice.pesMethod} then ${b.choice.pesMethod}): part of any change in Pes, Ea and Ees may be method, not physiology.`);
+    cautions.push(`End-systolic pressure was estimated differently (${PES_METHOD_WORDS[a.choice.pesMethod]} then ${PES_METHOD_WORDS[b.choice.pesMethod]}): part of any change in Pes, Ea and Ees may be method, not physiology.`);
   }
-  const limitsA = a.flags.filter((f) => f.level === 'caution').map((f) => f.code);
-  const limitsB = b.flags.filter((f) => f.level === 'caution').map((f) => f.code);
-  if (limitsA.length || limitsB.length) {
-    cautions.push(`Method limits apply (${[...new Set([...limitsA, ...limitsB])].join(', ')}); read the elastance changes with caution.`);
-  }
+  const limits = methodLimitWords([a, b].map((x) => ({ flags: x.flags, rhythm: x.inputs.rhythm })));
+  if (limits.length) cautions.push(`Method limits apply (${listInWords(limits)}); read the elastance changes with caution.`);
   return { methodsVersion: a.methodsVersion === b.methodsVersion ? a.methodsVersion : METHODS_VERSION, rows: [ea, pes, ees, eaEes], cautions };
 }
 

@@ -15,6 +15,7 @@ import { RESULT_KEYS, RESULT_UNITS, type ResultKey, type Results } from '../asse
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
+import type { Comparison } from '../records/compare.js';
 import { sanitizeText } from '../text/sanitize.js';
 import { bareNumber } from '../units/quantity.js';
 import { decimalsFor, formatNumber } from './format.js';
@@ -326,7 +327,19 @@ export function trailingColumns(): ColumnSpec[] {
   ];
 }
 
-/** Columns of `elastimate export`: subject, visit, date, note, inputs, results, trailing columns. */
+/** The changes `export` judges against the first visit of each subject (src/records/compare.ts). */
+const VERDICT_KEYS = ['pes', 'ea', 'ees', 'eaEes'] as const;
+
+/** Export columns with the verdict of each change from the subject's first visit: the word `record compare 1 <visit> --json` gives. */
+export function verdictColumns(): ColumnSpec[] {
+  return VERDICT_KEYS.map((key) => ({
+    name: `${key}ChangeFromFirst`,
+    unit: '',
+    description: `change in ${key} from the subject's first visit judged against the least significant change (src/records/compare.ts changeVerdict): beyond-noise, within-noise or not-computable; empty when the first visit could not be computed`,
+  }));
+}
+
+/** Columns of `elastimate export`: subject, visit, date, note, inputs, results, verdicts, trailing columns. */
 export function exportDictionary(): ColumnSpec[] {
   const inputs = inputColumns();
   return [
@@ -336,6 +349,7 @@ export function exportDictionary(): ColumnSpec[] {
     { name: 'note', unit: '', description: 'free-text note of the visit' },
     ...inputs,
     ...resultColumns(),
+    ...verdictColumns(),
     ...trailingColumns(),
   ];
 }
@@ -370,13 +384,18 @@ export function notComputableCell(r: Results): string {
   return text;
 }
 
-/** One export row, values in exportDictionary() order, for an assessed visit. */
-export function exportValues(subject: string, index: number, date: string, note: string | undefined, a: Assessment): CellValue[] {
+/**
+ * One export row, values in exportDictionary() order, for an assessed visit;
+ * `fromFirst` is compareVisits(first visit, this visit), null when the first
+ * visit could not be computed.
+ */
+export function exportValues(subject: string, index: number, date: string, note: string | undefined, a: Assessment, fromFirst: Comparison | null): CellValue[] {
   const notComputable = notComputableCell(a.results);
   return [
     subject, index, date, note ?? null,
     ...inputValues(a.inputs),
     ...RESULT_KEYS.map((k) => a.results[k].value),
+    ...VERDICT_KEYS.map((k) => fromFirst?.rows.find((r) => r.key === k)?.verdict ?? null),
     flagCell(a.flags) || null, notComputable || null, a.methodsVersion, null,
   ];
 }
@@ -384,7 +403,7 @@ export function exportValues(subject: string, index: number, date: string, note:
 /** An export row for a visit whose stored inputs do not parse: the reason in the error column. */
 export function exportErrorValues(subject: string, index: number, date: string, note: string | undefined, error: string, methodsVersion: string): CellValue[] {
   const blanks = (n: number): CellValue[] => Array.from({ length: n }, () => null);
-  return [subject, index, date, note ?? null, ...blanks(inputColumns().length), ...blanks(RESULT_KEYS.length), null, null, methodsVersion, error];
+  return [subject, index, date, note ?? null, ...blanks(inputColumns().length), ...blanks(RESULT_KEYS.length), ...blanks(VERDICT_KEYS.length), null, null, methodsVersion, error];
 }
 
 /** CSV cells for typed values: numbers through csvNumber in the column's unit, yes/no as 1/0, missing as ''. */

@@ -33,7 +33,7 @@ export function formatQuantity(q: Quantity): string {
   const base = formatValue(q.value, q.unit);
   if (q.interval95) {
     const d = decimalsFor(q.unit);
-    return `${base}  (95% range ${formatNumber(q.interval95[0], d)} to ${formatNumber(q.interval95[1], d)})`;
+    return `${base}  (95 % interval ${formatNumber(q.interval95[0], d)} to ${formatNumber(q.interval95[1], d)})`;
   }
   return base;
 }

@@ -150,10 +150,10 @@ export function diagramNotes(visits: readonly PvVisit[]): string[] {
     if (l.ees === null) notes.push(`${who}Ees not computable, so no end-systolic line.`);
     if (l.edpSource === 'none') notes.push(`${who}the diastolic curve needs EDP or E/e′; drawn without it (ejection limb only).`);
     if (l.edpSource === 'estimated') notes.push(`${who}diastolic curve from EDP ${formatNumber(l.edp, 0)} mmHg ESTIMATED from E/e′ (Nagueh 1997), ±8 mmHg.`);
-    if (i === 0 && l.ea !== null && l.eaLineSlope !== null && Math.abs(l.ea - l.eaLineSlope) > 0.02 * l.ea) {
+    if (i === 0 && l.ea !== null && l.eaLineSlope !== null && formatNumber(l.ea, 2) !== formatNumber(l.eaLineSlope, 2)) {
       notes.push(`${who}the Ea line's slope is Pes/(EDV − ESV) = ${formatNumber(l.eaLineSlope, 2)} mmHg/mL; the reported Ea ${formatNumber(l.ea, 2)} uses the Doppler stroke volume.`);
     }
-    if (l.v0 !== null && l.v0 < 0 && l.ees !== null) notes.push(`${who}V0 = ${formatNumber(l.v0, 0)} mL lies left of the volume axis (single-beat V0 is often negative).`);
+    if (l.v0 !== null && l.v0 < 0 && l.ees !== null) notes.push(`${who}V0(ES) = ${formatNumber(l.v0, 0)} mL, the end-systolic line's intercept, lies left of the volume axis (the single-beat intercept is often negative).`);
     if (i === 0 && l.diastolicCurve && l.diastolicCurve.anchorPressure === 15) {
       notes.push(`${who}EDP above 22 mmHg: diastolic curve anchored at 15 mmHg (Klotz protocol).`);
     }
@@ -331,7 +331,7 @@ function describe(visits: readonly PvVisit[]): string {
     .map((v) => {
       const l = v.loop;
       const parts = [`EDV ${formatNumber(l.edv, 0)} mL`, `ESV ${formatNumber(l.esv, 0)} mL`, `Pes ${formatNumber(l.pes, 0)} mmHg`];
-      if (l.ees !== null) parts.push(`Ees ${formatNumber(l.ees, 2)} mmHg/mL`, `V0 ${formatNumber(l.v0, 0)} mL`);
+      if (l.ees !== null) parts.push(`Ees ${formatNumber(l.ees, 2)} mmHg/mL`, `V0(ES) ${formatNumber(l.v0, 0)} mL`);
       if (l.eaLineSlope !== null) parts.push(`Ea line slope ${formatNumber(l.eaLineSlope, 2)} mmHg/mL`);
       if (l.edp !== null) parts.push(`EDP ${formatNumber(l.edp, 0)} mmHg (${l.edpSource})`);
       return `${v.label}: ${parts.join(', ')}`;

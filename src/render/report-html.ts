@@ -9,12 +9,13 @@ import type { Assessment } from '../assessment/assess.js';
 import type { ResultKey } from '../assessment/graph/index.js';
 import type { Quantity } from '../assessment/result.js';
 import type { UncertaintyReport } from '../assessment/uncertainty.js';
-import type { Comparison, LeastSignificantChange } from '../records/compare.js';
+import { compareVisits, type Comparison } from '../records/compare.js';
 import type { SubjectInfo } from '../records/subject-schema.js';
+import { sourceForReaders, CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
 import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
 import { rightHeartRows } from './right-heart-text.js';
-import { comparisonSummary } from './series.js';
+import { comparisonSummary, judgementWords } from './series.js';
 import { renderTrendChart, type TrendChartSpec } from './trend-chart.js';
 
 export interface ReportVisit {
@@ -37,14 +38,16 @@ export interface ReportModel {
   compared: number | null;
   /** compareVisits(compared, selected), rows carrying `noise` when the uncertainty was computed. */
   comparison: Comparison | null;
-  /** The least significant change per trend key, at the first visit (as `record compare` judges). */
-  lsc: Partial<Record<'ea' | 'ees' | 'eaEes', LeastSignificantChange>>;
   /** YYYY-MM-DD, passed in by the command (modules do not read the clock). */
   generated: string;
   toolVersion: string;
   /** How the intervals were computed (draws, seed), or why there are none. */
   uncertaintyNote: string;
 }
+
+/** What the trend charts show, under their heading in both report formats. */
+export const TREND_NOTE =
+  "The grey band is the least significant change around the first visit (2.77 × the repeat CV, on the log scale), drawn through each visit's own limit, the one record compare applies to the change from the first visit; filled markers lie beyond it. Whiskers: 95 % intervals from input measurement error.";
 
 export const REPORT_TITLE = 'Ventricular–arterial coupling: case-conference summary';
 
@@ -82,25 +85,34 @@ const TREND_KEYS = [
   { key: 'eaEes', title: 'Coupling ratio Ea/Ees', resultKey: 'eaEes' },
 ] as const satisfies readonly { key: 'ea' | 'ees' | 'eaEes'; title: string; resultKey: ResultKey }[];
 
+/**
+ * The trend charts. Each visit's band edge and verdict come from the
+ * comparison of the first visit with that visit (compareVisits, the one rule
+ * `record compare` applies), so a marker and `record compare 1 <visit>` agree.
+ */
 export function trendSpecs(m: ReportModel): TrendChartSpec[] {
+  const first = m.visits[0];
+  const fromFirst = m.visits.map((v) => (first ? compareVisits(first.assessment, v.assessment) : null));
   return TREND_KEYS.map(({ key, title, resultKey }) => {
     const unit = m.visits[0]?.assessment.results[resultKey].unit ?? '';
-    const lsc = m.lsc[key];
     const spec: TrendChartSpec = {
       key,
       title,
       unit,
       decimals: decimalsFor(unit),
       selectedIndex: selectedVisit(m).index,
-      points: m.visits.map((v) => {
+      points: m.visits.map((v, i) => {
         const q = v.assessment.results[resultKey];
         const p: TrendChartSpec['points'][number] = { index: v.index, date: v.date, value: q.value };
         if (q.interval95) p.interval95 = q.interval95;
         if (q.reason) p.reason = q.reason;
+        const row = fromFirst[i]?.rows.find((r) => r.key === key);
+        if (row) p.logLimit = row.lsc.logLimit;
         return p;
       }),
     };
-    if (lsc) spec.lsc = { logLimit: lsc.logLimit, source: lsc.source };
+    const source = fromFirst[0]?.rows.find((r) => r.key === key)?.lsc.source;
+    if (source) spec.bandSource = sourceForReaders(source, 'docs/subject-file.md');
     if (key === 'eaEes') spec.reference = { value: 1.2, label: 'cut-off 1.2 (Cheng 2008)' };
     return spec;
   });
@@ -142,39 +154,39 @@ export function keyRows(v: ReportVisit): KeyRow[] {
     q('Stroke volume used', r.svUsed),
     q('Ejection fraction', r.efUsed),
     q('Arterial elastance Ea', r.ea),
-    q('End-systolic elastance Ees', r.ees),
-    q('Coupling ratio Ea/Ees', r.eaEes, r.eaEes.value !== null ? (r.eaEes.value > 1.2 ? 'above the 1.2 cut-off (Cheng 2008)' : 'at or below the 1.2 cut-off (Cheng 2008)') : ''),
-    q('Volume intercept V0', r.v0, 'ESV − Pes/Ees; single-beat V0 is often negative'),
+    q('End-systolic elastance Ees', r.ees, `single-beat (Chen 2001); ${END_EST_WORDS}`),
+    q('Coupling ratio Ea/Ees', r.eaEes, couplingNote(r.eaEes.value)),
+    q(V0_END_SYSTOLIC, r.v0, 'ESV − Pes/Ees; often negative'),
   ];
   if (u) {
     rows.push({
-      label: 'Ees with the method\'s own error',
+      label: CALIBRATED_EES_LABEL,
       value: u.methodError.calibratedEes === null ? '—' : formatValue(u.methodError.calibratedEes, 'mmHg/mL'),
       interval: pairText(u.methodError.eesCombined, 2),
-      note: 'invasive Ees predicted as 0.86·Ees + 0.40, SEE 0.64 mmHg/mL (Chen 2001), with measurement error',
+      note: 'predicted by the published calibration 0.86·Ees + 0.40 (Chen 2001); interval adds its SEE 0.64 mmHg/mL',
     });
     if (u.coupling.probabilityAbove !== null) {
       rows.push({
         label: 'Probability Ea/Ees > 1.2',
         value: `${formatNumber(u.coupling.probabilityAbove * 100, 0)} %`,
         interval: '—',
-        note: u.coupling.probabilityAboveWithMethodError !== null ? `${formatNumber(u.coupling.probabilityAboveWithMethodError * 100, 0)} % with the method's own error added` : 'measurement error only',
+        note: u.coupling.probabilityAboveWithMethodError !== null ? `${formatNumber(u.coupling.probabilityAboveWithMethodError * 100, 0)} % with the method's own error added. ${CALIBRATION_SHIFT_NOTE}` : 'measurement error only',
       });
     }
     if (u.ees.notComputableFraction > 0) {
       rows.push({ label: 'Draws where Ees is not computable', value: `${formatNumber(u.ees.notComputableFraction * 100, 1)} %`, interval: '—', note: 'counted, not dropped' });
     }
     if (u.driver) {
-      rows.push({ label: 'Largest source of uncertainty', value: u.driver.label, interval: '—', note: `${formatNumber(u.driver.share * 100, 0)} % of the variance of ${u.driver.output === 'ees' ? 'Ees' : 'Ea/Ees'}: repeat this measurement to tighten the range` });
+      rows.push({ label: 'Largest source of uncertainty', value: u.driver.label, interval: '—', note: `${formatNumber(u.driver.share * 100, 0)} % of the variance of ${u.driver.output === 'ees' ? 'Ees' : 'Ea/Ees'}: repeat this measurement to tighten the interval` });
     }
   }
   return rows;
 }
 
 /** The visit table: one row per visit. */
-export const VISIT_COLUMNS: { title: string; unit: string; cell(v: ReportVisit): string }[] = [
+export const VISIT_COLUMNS: { title: string; unit: string; nowrap?: boolean; cell(v: ReportVisit): string }[] = [
   { title: 'Visit', unit: '', cell: (v) => String(v.index) },
-  { title: 'Date', unit: '', cell: (v) => v.date },
+  { title: 'Date', unit: '', nowrap: true, cell: (v) => v.date },
   { title: 'HR', unit: 'bpm', cell: (v) => formatNumber(v.assessment.inputs.hr, 0) },
   { title: 'SBP/DBP', unit: 'mmHg', cell: (v) => `${formatNumber(v.assessment.inputs.sbp, 0)}/${formatNumber(v.assessment.inputs.dbp, 0)}` },
   { title: 'EDV/ESV', unit: 'mL', cell: (v) => `${formatNumber(v.assessment.inputs.edv, 0)}/${formatNumber(v.assessment.inputs.esv, 0)}` },
@@ -198,11 +210,11 @@ export function mechanicsRows(a: Assessment): { group: string; label: string; va
   const e = m.energetics;
   const rows = [
     { group: 'Afterload', label: 'End-systolic pressure Pes', value: val(a.results.pes), note: note(a.results.pes, a.results.pes.method ?? '') },
-    { group: 'Afterload', label: 'Arterial elastance Ea', value: val(a.results.ea), note: note(a.results.ea, `resistance view TPR × HR/60: ${formatValue(a.results.eaResistance.value, 'mmHg/mL')}`) },
+    { group: 'Afterload', label: 'Arterial elastance Ea', value: val(a.results.ea), note: note(a.results.ea, `${EA_RT_LABEL}: ${formatValue(a.results.eaResistance.value, 'mmHg/mL')}`) },
     { group: 'Afterload', label: 'Wall stress, thin wall (Laplace)', value: val(m.wallStress.thinWall), note: note(m.wallStress.thinWall, 'σ = P·r/(2h), r = LVIDs/2, h = PWTs, P = cuff SBP') },
     { group: 'Afterload', label: 'Wall stress, meridional (Reichek 1982)', value: val(m.wallStress.meridional), note: note(m.wallStress.meridional, '0.334·P·LVIDs/[PWTs·(1 + PWTs/LVIDs)], P = cuff SBP as validated; published normal 65 ± 20') },
     { group: 'Energetics', label: 'Stroke work SW', value: joules(e.strokeWork, e.strokeWorkJoules), note: note(e.strokeWork, 'Pes × SV') },
-    { group: 'Energetics', label: 'Potential energy PE', value: joules(e.potentialEnergy, e.potentialEnergyJoules), note: note(e.potentialEnergy, 'Pes·(ESV − V0)/2') },
+    { group: 'Energetics', label: 'Potential energy PE', value: joules(e.potentialEnergy, e.potentialEnergyJoules), note: note(e.potentialEnergy, 'Pes·(ESV − V0(ES))/2') },
     { group: 'Energetics', label: 'Pressure–volume area PVA', value: joules(e.pressureVolumeArea, e.pressureVolumeAreaJoules), note: note(e.pressureVolumeArea, 'SW + PE (Suga)') },
     { group: 'Energetics', label: 'Mechanical efficiency SW/PVA', value: val(e.efficiency), note: note(e.efficiency, '= 1/(1 + Ea/(2·Ees)) in the linear model (Burkhoff & Sagawa 1986)') },
     { group: 'Diastole', label: 'End-diastolic pressure used', value: val(m.diastolic.edp), note: note(m.diastolic.edp, m.diastolic.edpSource === 'estimated' ? 'ESTIMATED from E/e′ (Nagueh 1997, lateral e′), ±8 mmHg' : 'entered') },
@@ -213,7 +225,7 @@ export function mechanicsRows(a: Assessment): { group: string; label: string; va
     label: 'Diastolic curve (Klotz 2006)',
     value: c ? `P = α·V^${formatNumber(c.beta, 2)}` : '—',
     note: c
-      ? `${c.anchorPressure} mmHg at ${formatNumber(c.anchorVolume, 0)} mL; ${c.anchorPressure === 15 ? 'EDP > 22 mmHg: anchored at 15 mmHg (Klotz protocol)' : 'single-beat, from one point'}`
+      ? `${c.anchorPressure} mmHg at ${formatNumber(c.anchorVolume, 0)} mL; ${V0_DIASTOLIC} ${formatNumber(c.unstressedVolume, 0)} mL; ${c.anchorPressure === 15 ? 'EDP > 22 mmHg: anchored at 15 mmHg (Klotz protocol)' : 'single-beat, from one point'}`
       : `not drawn: ${m.diastolic.reason ?? 'not computable'}`,
   });
   for (const r of rightHeartRows(a)) rows.push({ group: 'Right heart', label: r.label.trim(), value: r.value, note: r.note });
@@ -227,7 +239,7 @@ export function reportCaveats(v: ReportVisit): { flags: { level: string; message
     flags: a.flags.map((f) => ({ level: f.level, message: f.message })),
     caveats: [
       ...a.caveats,
-      'The pressure–volume diagram is built from the estimates above (end-systolic line from single-beat Ees and V0, diastolic curve from one point by the Klotz method, a schematic ejection limb peaking at cuff SBP); it is a picture of the model, not a measured loop.',
+      'The pressure–volume diagram is built from the estimates above (end-systolic line from single-beat Ees and its intercept V0(ES), diastolic curve from one point by the Klotz method, a schematic ejection limb peaking at cuff SBP); it is a picture of the model, not a measured loop.',
       'Wall stress uses M-mode end-systolic dimension and posterior wall thickness and cuff SBP; it is a geometric estimate of the load on the muscle, not of the arteries.',
     ],
   };
@@ -236,7 +248,7 @@ export function reportCaveats(v: ReportVisit): { flags: { level: string; message
 export const REFERENCES = [
   'Chen CH et al. Noninvasive single-beat determination of left ventricular end-systolic elastance in humans. J Am Coll Cardiol 2001;38:2028–34.',
   'Kelly RP et al. Effective arterial elastance as index of arterial vascular load in humans. Circulation 1992;86:513–21.',
-  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants from memory).',
+  'Klotz S et al. Single-beat estimation of end-diastolic pressure–volume relationship. Am J Physiol Heart Circ Physiol 2006;291:H403 (constants as quoted by a secondary implementation citing the authors\' protocol, Nat Protoc 2007;2:2152; see docs/methods.md).',
   'Nagueh SF et al. Doppler tissue imaging … estimation of filling pressures. J Am Coll Cardiol 1997;30:1527–33.',
   'Reichek N et al. Noninvasive determination of left ventricular end-systolic stress. Circulation 1982;65:99.',
   'Suga H. Ventricular energetics. Physiol Rev 1990;70:247–77; Burkhoff D, Sagawa K. Am J Physiol 1986;250:R1021.',
@@ -280,6 +292,7 @@ table { border-collapse: collapse; width: 100%; font-size: 12.5px; margin: 4px 0
 th, td { text-align: left; padding: 3px 6px; border-bottom: 1px solid var(--rule); vertical-align: top; }
 th { border-bottom: 1.5px solid var(--ink); font-weight: 600; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+td.nowrap, th.nowrap { white-space: nowrap; }
 tr.selected td { font-weight: 700; background: #f1f6fa; }
 .unit { font-weight: 400; color: var(--muted); font-size: 11px; display: block; }
 figure { margin: 6px 0; break-inside: avoid; page-break-inside: avoid; }
@@ -305,7 +318,7 @@ ol.refs { font-size: 11.5px; padding-left: 18px; color: var(--muted); }
   .sheet:last-child { break-after: auto; page-break-after: auto; }
   h2 { break-after: avoid; page-break-after: avoid; }
   table, .note-box { break-inside: avoid; page-break-inside: avoid; }
-  figure.pv svg { max-width: 112mm; }
+  figure.pv svg { max-width: 96mm; }
   td { padding: 2px 5px; }
   .muted, .provenance, figcaption { font-size: 7.5pt; }
   .change-lines { column-count: 2; column-gap: 6mm; }
@@ -314,11 +327,16 @@ ol.refs { font-size: 11.5px; padding-left: 18px; color: var(--muted); }
 }
 `;
 
-function table(headers: { title: string; unit?: string; num?: boolean; width?: string }[], rows: { cells: string[]; selected?: boolean }[]): string {
+function cellClass(h: { num?: boolean; nowrap?: boolean } | undefined): string {
+  const names = [h?.num ? 'num' : '', h?.nowrap ? 'nowrap' : ''].filter(Boolean);
+  return names.length ? ` class="${names.join(' ')}"` : '';
+}
+
+function table(headers: { title: string; unit?: string; num?: boolean; nowrap?: boolean; width?: string }[], rows: { cells: string[]; selected?: boolean }[]): string {
   const cols = headers.some((h) => h.width) ? `<colgroup>${headers.map((h) => `<col${h.width ? ` style="width:${h.width}"` : ''}>`).join('')}</colgroup>\n` : '';
-  const head = headers.map((h) => `<th${h.num ? ' class="num"' : ''}>${esc(h.title)}${h.unit ? `<span class="unit">${esc(h.unit)}</span>` : ''}</th>`).join('');
+  const head = headers.map((h) => `<th${cellClass(h)}>${esc(h.title)}${h.unit ? `<span class="unit">${esc(h.unit)}</span>` : ''}</th>`).join('');
   const body = rows
-    .map((r) => `<tr${r.selected ? ' class="selected"' : ''}>${r.cells.map((c, i) => `<td${headers[i]?.num ? ' class="num"' : ''}>${esc(c)}</td>`).join('')}</tr>`)
+    .map((r) => `<tr${r.selected ? ' class="selected"' : ''}>${r.cells.map((c, i) => `<td${cellClass(headers[i])}>${esc(c)}</td>`).join('')}</tr>`)
     .join('\n');
   return `<table>\n${cols}<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
 }
@@ -356,7 +374,7 @@ export function renderReportHtml(m: ReportModel): string {
   parts.push(`<p class="muted">${esc(m.uncertaintyNote)}</p>`);
   parts.push('<figure class="pv">');
   parts.push(pvDiagramSvg(m));
-  parts.push(`<figcaption>Estimated pressure–volume diagram of ${esc(visitLabel(sel))}${cmp ? `, with ${esc(visitLabel(cmp))} overlaid (orange, open squares)` : ''}. End-systolic line from single-beat Ees and V0; diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes).</figcaption>`);
+  parts.push(`<figcaption>Estimated pressure–volume diagram of ${esc(visitLabel(sel))}${cmp ? `, with ${esc(visitLabel(cmp))} overlaid (orange, open squares)` : ''}. End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes).</figcaption>`);
   parts.push('</figure>');
   parts.push('</section>');
 
@@ -370,7 +388,7 @@ export function renderReportHtml(m: ReportModel): string {
   if (a.mechanics) parts.push(`<p>${esc(a.mechanics.afterloadNote)}</p>`);
   parts.push('<h2>Visits</h2>');
   parts.push(table(
-    VISIT_COLUMNS.map((c, i) => ({ title: c.title, unit: c.unit, num: i >= 2 })),
+    VISIT_COLUMNS.map((c, i) => ({ title: c.title, unit: c.unit, num: i >= 2, nowrap: c.nowrap === true })),
     m.visits.map((v) => ({ cells: VISIT_COLUMNS.map((c) => c.cell(v)), selected: v === sel })),
   ));
   if (m.comparison && cmp) {
@@ -379,9 +397,6 @@ export function renderReportHtml(m: ReportModel): string {
       [{ title: 'Quantity' }, { title: 'From', num: true }, { title: 'To', num: true }, { title: 'Change', num: true }, { title: 'Least significant change', num: true }, { title: 'Judgement' }],
       m.comparison.rows.map((row) => {
         const d = decimalsFor(row.unit);
-        const judgement =
-          row.verdict === 'not-computable' ? 'not computable' : row.verdict === 'beyond-noise' ? 'beyond the least significant change' : 'within the least significant change';
-        const extra = row.noise ? (row.noise.exceeds ? '; larger than this subject\'s input uncertainty' : '; within this subject\'s input uncertainty') : '';
         return {
           cells: [
             row.label,
@@ -389,7 +404,7 @@ export function renderReportHtml(m: ReportModel): string {
             formatNumber(row.to, d),
             row.percentChange === null ? '—' : `${row.percentChange > 0 ? '+' : ''}${formatNumber(row.percentChange, 0)} %`,
             `+${formatNumber(row.lsc.percentUp, 0)} % / −${formatNumber(row.lsc.percentDown, 0)} %`,
-            judgement + extra,
+            judgementWords(row),
           ],
         };
       }),
@@ -404,12 +419,12 @@ export function renderReportHtml(m: ReportModel): string {
   // Sheet 3: the trends.
   parts.push('<section class="sheet" id="trends">');
   parts.push('<h2>Trends across visits</h2>');
-  parts.push(`<p class="muted">The grey band is the least significant change around the first visit (2.77 × the repeat CV, on the log scale, as <em>record compare</em> judges); filled markers lie beyond it. Whiskers: 95 % intervals from input measurement error.</p>`);
+  parts.push(`<p class="muted">${esc(TREND_NOTE)}</p>`);
   const specs = trendSpecs(m);
   for (const spec of specs) {
     parts.push('<figure class="trend">');
     parts.push(renderTrendChart(spec));
-    parts.push(`<figcaption>${esc(spec.lsc ? `Repeat CV: ${spec.lsc.source}.` : 'No least-significant-change band: no baseline value.')}</figcaption>`);
+    parts.push(`<figcaption>${esc(spec.bandSource ? `Repeat CV: ${spec.bandSource}.` : 'No least-significant-change band: no baseline value.')}</figcaption>`);
     parts.push('</figure>');
   }
   parts.push('</section>');

@@ -6,10 +6,10 @@
 import { escapeMarkdownInline } from '../text/sanitize.js';
 import { decimalsFor, formatNumber } from './format.js';
 import {
-  REFERENCES, REPORT_TITLE, VISIT_COLUMNS, comparedVisit, keyRows, mechanicsRows, provenanceLine, pvDiagramSvg, reportCaveats,
+  REFERENCES, REPORT_TITLE, TREND_NOTE, VISIT_COLUMNS, comparedVisit, keyRows, mechanicsRows, provenanceLine, pvDiagramSvg, reportCaveats,
   selectedVisit, subjectLine, trendSpecs, visitLabel, type ReportModel,
 } from './report-html.js';
-import { comparisonSummary } from './series.js';
+import { comparisonSummary, judgementWords } from './series.js';
 import { renderTrendChart } from './trend-chart.js';
 
 export interface MarkdownReport {
@@ -56,7 +56,7 @@ export function renderReportMarkdown(m: ReportModel, baseName: string): Markdown
   files.push({ name: pvName, content: pvDiagramSvg(m) + '\n' });
   out.push('## Estimated pressure–volume diagram', '');
   out.push(`![Estimated pressure–volume diagram of ${md(visitLabel(sel))}](${encodeURI(pvName)})`, '');
-  out.push(`End-systolic line from single-beat Ees and V0; diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes)${cmp ? `; ${md(visitLabel(cmp))} overlaid in orange with open squares` : ''}.`, '');
+  out.push(`End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes)${cmp ? `; ${md(visitLabel(cmp))} overlaid in orange with open squares` : ''}.`, '');
 
   out.push(`## Afterload beside Ea, energetics and the diastolic side`, '');
   out.push(...table(['', 'Quantity', 'Value', 'Method or note'], mechanicsRows(a).map((r) => [r.group, r.label, r.value, r.note]), (i) => i === 2));
@@ -83,7 +83,7 @@ export function renderReportMarkdown(m: ReportModel, baseName: string): Markdown
           formatNumber(row.to, d),
           row.percentChange === null ? '—' : `${row.percentChange > 0 ? '+' : ''}${formatNumber(row.percentChange, 0)} %`,
           `+${formatNumber(row.lsc.percentUp, 0)} % / −${formatNumber(row.lsc.percentDown, 0)} %`,
-          row.verdict === 'not-computable' ? 'not computable' : row.verdict === 'beyond-noise' ? 'beyond the least significant change' : 'within the least significant change',
+          judgementWords(row),
         ];
       }),
       (i) => i >= 1 && i <= 4,
@@ -95,12 +95,12 @@ export function renderReportMarkdown(m: ReportModel, baseName: string): Markdown
   }
 
   out.push('## Trends across visits', '');
-  out.push('The grey band is the least significant change around the first visit (2.77 × the repeat CV, on the log scale); filled markers lie beyond it. Whiskers: 95 % intervals from input measurement error.', '');
+  out.push(md(TREND_NOTE), '');
   for (const spec of trendSpecs(m)) {
     const name = `${baseName}-trend-${spec.key}.svg`;
     files.push({ name, content: renderTrendChart(spec) + '\n' });
     out.push(`![${md(spec.title)} across visits](${encodeURI(name)})`, '');
-    if (spec.lsc) out.push(`Repeat CV: ${md(spec.lsc.source)}.`, '');
+    if (spec.bandSource) out.push(`Repeat CV: ${md(spec.bandSource)}.`, '');
   }
 
   out.push(`## Checks and caveats (${md(visitLabel(sel))})`, '');

@@ -10,9 +10,10 @@ import type { ChangePart, ChangeRow, Comparison } from '../records/compare.js';
 import type { SeriesEntry } from '../records/series.js';
 import type { SubjectFile } from '../records/subject-schema.js';
 import { decimalsFor, formatNumber, formatValue, pad, padLeft } from './format.js';
+import { couplingNote, listInWords } from '../assessment/labels.js';
 import { INPUT_UNITS } from './json.js';
 import { plainStyle, type Style } from './style.js';
-import { wrap } from './terminal.js';
+import { bullet, wrap, wrapIndented } from './terminal.js';
 import { sanitizeText } from '../text/sanitize.js';
 
 export const SERIES_FORMAT = 'elastimate-series';
@@ -101,10 +102,15 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
     out.push(s.dim(row(COLUMNS.map((c) => c.unit))));
     entries.forEach((e, i) => out.push(row(COLUMNS.map((c) => c.cell(e, changes[i] ?? null)))));
     out.push('');
-    out.push(s.dim('  Changes are from the previous visit; * marks a change beyond the least significant change (2.77 × the repeat CV),'));
-    out.push(s.dim('  unmarked changes are within measurement noise. `elastimate record compare` explains any two visits.'));
-    if (changes.some((c) => c?.rows.some((r) => r.noise))) {
-      out.push(s.dim('  † marks a change whose 95 % interval from the propagated input error excludes no change (Monte Carlo).'));
+    const legend = ['Changes are from the previous visit; * marks a change beyond the least significant change (2.77 × the repeat CV); unmarked changes are within it. `elastimate record compare` explains any two visits.'];
+    if (changes.some((c) => c?.rows.some((r) => r.noise))) legend.push('† marks a change whose 95 % interval from the propagated input error excludes zero (Monte Carlo).');
+    for (const text of legend) out.push(...wrapIndented(text, s.width, '  ').map((l) => s.dim(l)));
+    out.push('');
+    out.push(s.heading('Coupling'));
+    for (const e of entries) {
+      const q = e.assessment.results.eaEes;
+      const note = couplingNote(q.value);
+      out.push(`  ${pad(String(e.index), 3)} Ea/Ees ${q.value === null ? `not computable (${q.reason ?? 'missing input'})` : `${formatNumber(q.value, decimalsFor(q.unit))}: ${note}`}`);
     }
   }
 
@@ -113,7 +119,7 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
     out.push('');
     out.push(s.heading('Notes'));
     for (const e of notes) {
-      const lines = wrap(sanitizeText((e.visit.note ?? '').replace(/\s+/g, ' ')), 90);
+      const lines = wrap(sanitizeText((e.visit.note ?? '').replace(/\s+/g, ' ')), s.width - 6);
       lines.forEach((l, i) => out.push(`  ${i === 0 ? pad(`${e.index}`, 4) : '    '}${l}`));
     }
   }
@@ -124,19 +130,19 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
   for (const e of flagged) {
     for (const f of e.assessment.flags.filter((x) => x.level !== 'note')) {
       const tag = f.level === 'attention' ? s.attention('[attention]') : s.caution('[caution]  ');
-      const lines = wrap(f.message, 86);
+      const lines = wrap(f.message, s.width - 16);
       lines.forEach((l, i) => out.push(`  ${i === 0 ? `${pad(String(e.index), 3)} ${tag} ` : ' '.repeat(16)}${l}`));
     }
   }
   if (flagged.length === 0 && entries.length > 0) out.push('  No visit crossed a check threshold or broke a method assumption.');
-  for (const c of STANDING_CAVEATS) out.push(...wrap(c, 96).map((l, i) => `  ${i === 0 ? s.dim('•') : ' '} ${l}`));
+  for (const c of STANDING_CAVEATS) out.push(...bullet(c, s.width, s.dim('•')));
   out.push('');
   return out.join('\n');
 }
 
 /** The paste-ready referral note under its heading, as the assess report prints it. */
 function referralLines(heading: string, referral: string, s: Style): string[] {
-  return ['', s.heading(heading), ...wrap(referral, 96).map((l) => '  ' + l)];
+  return ['', s.heading(heading), ...wrapIndented(referral, s.width, '  ')];
 }
 
 /** The referral note of the latest visit of a series, printed last under the series table (and its ranges). */
@@ -150,36 +156,45 @@ function ratioText(row: ChangeRow): string {
   return `±${formatNumber(row.lsc.logLimit, 3)} in ln (+${formatNumber(row.lsc.percentUp, 0)} % / −${formatNumber(row.lsc.percentDown, 0)} %)`;
 }
 
+/** Whether the 95 % interval of the change from the inputs' uncertainty includes zero, in words. */
+function noiseWords(row: ChangeRow): string | null {
+  if (!row.noise) return null;
+  return row.noise.exceeds ? 'excludes zero: larger than the uncertainty of the inputs' : 'includes zero: within the uncertainty of the inputs';
+}
+
 function noiseText(row: ChangeRow): string | null {
   if (!row.noise) return null;
   const d = decimalsFor(row.unit) + 1;
   const [lo, hi] = row.noise.interval95;
-  const verdict = row.noise.exceeds ? 'excludes no change: larger than the uncertainty of the inputs' : 'includes no change: within the uncertainty of the inputs';
-  return `input uncertainty: 95 % interval of the change ${signed(lo, d)} to ${signed(hi, d)}${row.unit ? ' ' + row.unit : ''}; ${verdict}. Source: ${row.noise.source}`;
+  return `input uncertainty: the 95 % interval of the change, ${signed(lo, d)} to ${signed(hi, d)}${row.unit ? ' ' + row.unit : ''}, ${noiseWords(row)}. Source: ${row.noise.source}`;
+}
+
+/** The verdict of a row in words, as every table of changes shows it (both yardsticks when both were computed). */
+export function judgementWords(row: ChangeRow): string {
+  if (row.verdict === 'not-computable') return 'not computable';
+  const lsc = row.verdict === 'beyond-noise' ? 'beyond the least significant change' : 'within the least significant change';
+  if (!row.noise) return lsc;
+  return `${lsc}; 95 % interval from the inputs ${row.noise.exceeds ? 'excludes' : 'includes'} zero`;
 }
 
 function shortName(row: ChangeRow): string {
   return row.key === 'eaEes' ? 'Ea/Ees' : row.key === 'ea' ? 'Ea' : row.key === 'ees' ? 'Ees' : 'Pes';
 }
 
-/** One plain sentence per row: what changed and whether it is more than noise. */
+/** One plain sentence per row: what changed and what each yardstick says. */
 export function changeSentence(row: ChangeRow): string {
   const name = shortName(row);
   if (row.verdict === 'not-computable' || row.percentChange === null) {
     return `${name}: the change is not computable (${row.reason ?? 'missing at one of the visits'}).`;
   }
-  const direction = row.percentChange > 0 ? 'rose' : row.percentChange < 0 ? 'fell' : 'did not change';
+  const direction = row.percentChange > 0 ? 'rose' : row.percentChange < 0 ? 'fell' : 'stayed the same';
   const size = row.percentChange === 0 ? '' : ` by ${formatNumber(Math.abs(row.percentChange), 0)} %`;
   const lsc = `the least significant change (${ratioText(row)}, repeat CV ${formatNumber(row.lsc.cv * 100, 1)} %)`;
   let sentence =
     row.verdict === 'beyond-noise'
-      ? `${name} ${direction}${size}: beyond ${lsc}, more than measurement noise alone would explain.`
-      : `${name} ${direction}${size}: within measurement noise, inside ${lsc}; this alone does not show a real change.`;
-  if (row.noise) {
-    sentence += row.noise.exceeds
-      ? ' The uncertainty of this subject\'s inputs also excludes no change.'
-      : ' The uncertainty of this subject\'s inputs also includes no change.';
-  }
+      ? `${name} ${direction}${size}: beyond ${lsc}, more than repeat-measurement noise would explain.`
+      : `${name} ${direction}${size}: within ${lsc}, so repeat-measurement noise could explain it.`;
+  if (row.noise) sentence += ` The 95 % interval of the change from this subject's input uncertainty ${row.noise.exceeds ? 'excludes zero' : 'includes zero'}.`;
   return sentence;
 }
 
@@ -192,24 +207,48 @@ function driverSentence(row: ChangeRow): string | null {
   return `Of the change in ln ${shortName(row)} (${signed(row.logChange, 3)}), the largest part is ${label}: ${signed(main.logChange, 3)}.`;
 }
 
-/** Plain sentences summarising a comparison. */
+function namesOr(list: string[], none: string): string {
+  return list.length ? listInWords(list) : none;
+}
+
+/**
+ * Plain sentences summarising a comparison: the two yardsticks, each once,
+ * and what each says; where they disagree, which one the verdict follows.
+ * The verdict (beyond or within noise) is the least significant change's.
+ */
 export function comparisonSummary(c: Comparison): string[] {
   const lines: string[] = [];
-  const beyond = c.rows.filter((r) => r.verdict === 'beyond-noise').map(shortName);
-  const within = c.rows.filter((r) => r.verdict === 'within-noise').map(shortName);
-  if (beyond.length === 0 && within.length > 0) {
-    lines.push(`Every change that could be computed (${within.join(', ')}) is within measurement noise (the least significant change): by this method these visits show no change larger than noise.`);
-  } else if (beyond.length > 0) {
-    lines.push(`Beyond measurement noise (the least significant change): ${beyond.join(', ')}${within.length ? `; within noise: ${within.join(', ')}` : ''}.`);
+  const computed = c.rows.filter((r) => r.verdict !== 'not-computable');
+  const beyond = computed.filter((r) => r.verdict === 'beyond-noise').map(shortName);
+  const within = computed.filter((r) => r.verdict === 'within-noise').map(shortName);
+  const missing = c.rows.filter((r) => r.verdict === 'not-computable').map(shortName);
+  const first = 'Yardstick 1, the method\'s least significant change (how much a repeat measurement of the same person varies, from published repeatability): ';
+  if (computed.length === 0) {
+    lines.push(first + 'no change could be computed.');
+  } else if (beyond.length === 0) {
+    lines.push(first + `every change (${listInWords(within)}) is within it, so none is shown to be real.`);
+  } else {
+    lines.push(first + `beyond it: ${listInWords(beyond)}; within it: ${namesOr(within, 'none')}.`);
   }
-  const checked = c.rows.filter((r) => r.noise);
+  if (missing.length) lines.push(`Not computable at one of the visits: ${listInWords(missing)}.`);
+  const checked = computed.filter((r) => r.noise);
   if (checked.length > 0) {
-    const exceeding = checked.filter((r) => r.noise!.exceeds).map(shortName);
+    const excludes = checked.filter((r) => r.noise!.exceeds).map(shortName);
+    const includes = checked.filter((r) => !r.noise!.exceeds).map(shortName);
     lines.push(
-      exceeding.length === 0
-        ? `Against the propagated uncertainty of this subject's inputs, every change checked (${checked.map(shortName).join(', ')}) is within noise too.`
-        : `Against the propagated uncertainty of this subject's inputs, ${exceeding.join(', ')} changed by more than that noise.`,
+      'Yardstick 2, the propagated uncertainty of this subject\'s own inputs (Monte Carlo): the 95 % interval of the change ' +
+        (excludes.length === 0
+          ? `includes zero for every change (${listInWords(includes)}).`
+          : includes.length === 0
+            ? `excludes zero for every change (${listInWords(excludes)}).`
+            : `excludes zero for ${listInWords(excludes)} and includes zero for ${listInWords(includes)}.`),
     );
+    const disagree = checked.filter((r) => (r.verdict === 'beyond-noise') !== r.noise!.exceeds).map(shortName);
+    if (disagree.length) {
+      lines.push(
+        `The two yardsticks differ for ${listInWords(disagree)}. The least significant change also counts visit-to-visit variation that this subject's inputs do not show, so the verdict (beyond or within noise) follows it.`,
+      );
+    }
   }
   for (const row of c.rows) {
     lines.push(changeSentence(row));
@@ -248,9 +287,9 @@ export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef
   }
   out.push('');
   out.push(s.heading('In plain words'));
-  for (const line of comparisonSummary(c)) out.push(...wrap(line, 96).map((l, i) => `  ${i === 0 ? '•' : ' '} ${l}`));
-  for (const caution of c.cautions) out.push(...wrap(caution, 96).map((l, i) => `  ${i === 0 ? s.caution('!') : ' '} ${l}`));
-  for (const caveat of STANDING_CAVEATS) out.push(...wrap(caveat, 96).map((l, i) => `  ${i === 0 ? s.dim('•') : ' '} ${l}`));
+  for (const line of comparisonSummary(c)) out.push(...bullet(line, s.width));
+  for (const caution of c.cautions) out.push(...bullet(caution, s.width, s.caution('!')));
+  for (const caveat of STANDING_CAVEATS) out.push(...bullet(caveat, s.width, s.dim('•')));
   if (referral !== undefined) out.push(...referralLines(`Referral note for visit ${to.index} (${to.date}) (paste-ready)`, referral, s));
   out.push('');
   return out.join('\n');

@@ -8,6 +8,16 @@ export interface Style {
   dim(text: string): string;
   caution(text: string): string;
   attention(text: string): string;
+  /** Columns to wrap prose to: the terminal's width, or 80 off a terminal. */
+  width: number;
+}
+
+/** Prose width off a terminal (a file, a pipe): 80 columns. */
+export const DEFAULT_WIDTH = 80;
+
+/** The width to wrap to for a stream: its columns on a terminal (at least 40), else 80. */
+export function screenWidth(stream: { isTTY?: boolean; columns?: number }): number {
+  return stream.isTTY && typeof stream.columns === 'number' && stream.columns > 0 ? Math.max(40, stream.columns) : DEFAULT_WIDTH;
 }
 
 export const plainStyle: Style = {
@@ -16,6 +26,7 @@ export const plainStyle: Style = {
   dim: (t) => t,
   caution: (t) => t,
   attention: (t) => t,
+  width: DEFAULT_WIDTH,
 };
 
 /** Whether a stream should get colour: a terminal, NO_COLOR unset, TERM not dumb. */
@@ -27,7 +38,7 @@ export function wantsColour(stream: { isTTY?: boolean }, env: NodeJS.ProcessEnv)
 }
 
 /** chalk is loaded only when colour is wanted. */
-export async function colourStyle(): Promise<Style> {
+export async function colourStyle(width = DEFAULT_WIDTH): Promise<Style> {
   const { Chalk } = await import('chalk');
   const c = new Chalk({ level: 1 });
   return {
@@ -36,5 +47,6 @@ export async function colourStyle(): Promise<Style> {
     dim: (t) => c.dim(t),
     caution: (t) => c.yellow(t),
     attention: (t) => c.bold.magenta(t),
+    width,
   };
 }

@@ -4,6 +4,8 @@
  * rasterised onto a character grid. Plain characters only, so it survives
  * NO_COLOR, pipes and copy-paste; each kind of line has its own glyph.
  */
+import { DEFAULT_WIDTH } from './style.js';
+import { wrap } from './terminal.js';
 import { loopOutline } from '../assessment/mechanics.js';
 import { formatNumber, padLeft } from './format.js';
 import { arterialLine, diagramNotes, diastolicCurvePoints, endSystolicLine, pvDomain, type PvVisit } from './pv-diagram.js';
@@ -12,6 +14,8 @@ export interface SketchOptions {
   /** Plot columns (default 56) and rows (default 16), axes excluded. */
   columns?: number;
   rows?: number;
+  /** Width the legend's notes wrap to (default 80, the width off a terminal). */
+  width?: number;
 }
 
 /** Glyphs, in drawing order (later ones win a shared cell). */
@@ -89,11 +93,11 @@ export function renderPvSketch(visits: readonly PvVisit[], options: SketchOption
   }
   lines.push(`${' '.repeat(labelWidth)} └${axis.join('')}`);
   lines.push(`${' '.repeat(labelWidth + 2)}${labels.join('').replace(/\s+$/, '')}  mL`);
-  lines.push(...sketchLegend(shown));
+  lines.push(...sketchLegend(shown, options.width ?? DEFAULT_WIDTH));
   return lines;
 }
 
-function sketchLegend(visits: readonly PvVisit[]): string[] {
+function sketchLegend(visits: readonly PvVisit[], width: number): string[] {
   const lines: string[] = [];
   visits.forEach((v, i) => {
     const l = v.loop;
@@ -106,6 +110,6 @@ function sketchLegend(visits: readonly PvVisit[]): string[] {
   });
   lines.push(`${SKETCH_GLYPHS.espvr} end-systolic line   ${SKETCH_GLYPHS.ea} Ea line (EDV,0)→(ESV,Pes)   ${SKETCH_GLYPHS.edpvr} diastolic curve`);
   // The same notes as the SVG: what is estimated, what is missing and why.
-  lines.push(...diagramNotes(visits).map((n) => n.charAt(0).toUpperCase() + n.slice(1)));
+  lines.push(...diagramNotes(visits).flatMap((n) => wrap(n.charAt(0).toUpperCase() + n.slice(1), width)));
   return lines;
 }

@@ -9,6 +9,10 @@ import { formatNumber, formatQuantity, formatValue, pad, padLeft } from './forma
 import { mechanicsSections } from './mechanics-text.js';
 import { rightHeartRows } from './right-heart-text.js';
 import { plainStyle, type Style } from './style.js';
+import {
+  EA_RT_LABEL, END_AVG_LABEL, END_EST_LABEL, END_NOTE, PES_METHOD_WORDS, RHYTHM_WORDS, STROKE_VOLUME_SOURCE_WORDS, V0_END_SYSTOLIC, couplingNote,
+} from '../assessment/labels.js';
+import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 
 const LABEL_WIDTH = 34;
 
@@ -18,7 +22,7 @@ export interface TerminalOptions {
   recheck?: boolean;
   /** A title line, e.g. the subject id and visit date. */
   title?: string;
-  /** Where inputs came from when not typed (e.g. "from DICOM SR LN 79996-5 …"), by input key. */
+  /** Where inputs came from when not typed (e.g. "from DICOM SR LN 79996-5 …", "from --hr; the visit file had 68"), by input key. */
   inputSources?: Readonly<Record<string, string>>;
   /** Extra sections appended before the caveats (uncertainty, wall stress…). */
   extraSections?: { title: string; lines: string[] }[];
@@ -69,7 +73,7 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('Arterial compliance (SV/PP)', r.compliance);
   line('Arterial elastance Ea', r.ea);
   line('  Ea indexed to BSA', r.eaIndexed);
-  line('  resistance view TPR × HR/60', r.eaResistance);
+  line(`  ${EA_RT_LABEL}`, r.eaResistance);
   if (r.ea.value !== null && r.eaResistance.value !== null) {
     const pulsatile = r.ea.value - r.eaResistance.value;
     out.push(s.dim(`  ${pad('', LABEL_WIDTH)}Pes/SV − TPR·HR/60 = ${formatNumber(pulsatile, 2)} mmHg/mL: the pulsatile part of the load`));
@@ -77,15 +81,17 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
 
   section('Ventricular elastance (single-beat, Chen 2001)');
   line('Normalized time tNd', r.tNd);
-  line('ENd(avg)', r.normalizedElastanceAvg);
-  line('ENd(est)', r.normalizedElastanceEst);
+  line(END_AVG_LABEL, r.normalizedElastanceAvg);
+  line(END_EST_LABEL, r.normalizedElastanceEst);
+  out.push(...wrapIndented(END_NOTE, s.width, '  ').map((l) => s.dim(l)));
   line('End-systolic elastance Ees', r.ees);
   line('  Ees indexed to BSA', r.eesIndexed);
-  line('  implied V0', r.v0);
-  line('  crude Pes/ESV (V0 = 0)', r.eesNoIntercept);
+  line(`  ${V0_END_SYSTOLIC}`, r.v0);
+  line('  crude Pes/ESV (V0(ES) = 0)', r.eesNoIntercept);
 
   section('Coupling');
-  line('Ea/Ees', r.eaEes, r.eaEes.value !== null ? (r.eaEes.value > 1.2 ? s.caution('above the 1.2 cut-off') : s.dim('at or below the 1.2 cut-off')) : undefined);
+  const coupling = couplingNote(r.eaEes.value);
+  line('Ea/Ees', r.eaEes, coupling ? (r.eaEes.value! > COUPLING_CUTOFF ? s.caution(coupling) : s.dim(coupling)) : undefined);
   line('  cross-check 1/EF − 1', r.eaEesFromEf);
 
   const rightHeart = rightHeartRows(a);
@@ -98,7 +104,7 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
     section('Recheck: the same subject under each method variant');
     out.push(...renderVariants(a, s));
   }
-  for (const extra of [...mechanicsSections(a), ...(options.extraSections ?? [])]) {
+  for (const extra of [...mechanicsSections(a, s.width), ...(options.extraSections ?? [])]) {
     section(extra.title);
     out.push(...extra.lines.map((l) => '  ' + l));
   }
@@ -106,28 +112,29 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   section('Checks and caveats');
   for (const f of a.flags) {
     const tag = f.level === 'attention' ? s.attention('[attention]') : f.level === 'caution' ? s.caution('[caution]  ') : s.dim('[note]     ');
-    out.push(`  ${tag} ${f.message}`);
+    out.push(...wrapIndented(f.message, s.width, '  ' + ' '.repeat(12)).map((l, i) => (i === 0 ? `  ${tag} ${l.trimStart()}` : l)));
   }
   if (a.flags.length === 0) out.push('  No consistency or validity problem found.');
-  for (const c of a.caveats.filter((c) => !c.startsWith('Method limits'))) out.push(`  ${s.dim('•')} ${c}`);
+  for (const c of a.caveats.filter((c) => !c.startsWith('Method limits'))) out.push(...bullet(c, s.width, s.dim('•')));
 
   section('Referral note (paste-ready)');
-  out.push(...wrap(a.referral, 96).map((l) => '  ' + l));
+  out.push(...wrapIndented(a.referral, s.width, '  '));
   out.push('');
   return out.join('\n');
 }
 
 export function renderVariants(a: Assessment, s: Style = plainStyle): string[] {
-  const header = `${pad('Pes estimate', 24)}${pad('SV source', 12)}${padLeft('Pes', 6)}${padLeft('SV', 6)}${padLeft('Ea', 7)}  ${pad('Ees method', 12)}${padLeft('Ees', 7)}${padLeft('Ea/Ees', 8)}`;
+  const header = `${pad('Pes estimate', 18)}${pad('SV source', 12)}${padLeft('Pes', 6)}${padLeft('SV', 6)}${padLeft('Ea', 7)}  ${pad('Ees method', 12)}${padLeft('Ees', 7)}${padLeft('Ea/Ees', 8)}`;
   const lines = [s.dim(header)];
   for (const v of a.variants) {
     const text =
-      `${pad(v.pesMethod === 'sbp90' ? '0.9×SBP' : v.pesMethod === 'weighted' ? '(2·SBP+DBP)/3' : 'measured', 24)}` +
-      `${pad(v.strokeVolumeSource, 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.svUsed, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
+      `${pad(PES_METHOD_WORDS[v.pesMethod], 18)}` +
+      `${pad(STROKE_VOLUME_SOURCE_WORDS[v.strokeVolumeSource], 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.svUsed, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
       `${pad(v.eesMethod, 12)}${padLeft(formatNumber(v.ees, 2), 7)}${padLeft(formatNumber(v.eaEes, 2), 8)}`;
     lines.push(v.isMain ? s.strong(text + '  ← reported') : text);
   }
-  lines.push(s.dim('Pes estimates side by side: ' + a.pesEstimates.map((p) => `${p.method} ${p.value === null ? '— (not given)' : formatValue(p.value, 'mmHg')}`).join('; ')));
+  const side = 'Pes estimates side by side: ' + a.pesEstimates.map((p) => `${PES_METHOD_WORDS[p.method]} ${p.value === null ? '— (not given)' : formatValue(p.value, 'mmHg')}`).join('; ');
+  lines.push(...wrap(side, s.width).map((l) => s.dim(l)));
   return lines;
 }
 
@@ -151,7 +158,7 @@ function inputRows(a: Assessment, sources: Readonly<Record<string, string>> = {}
   numeric('sbp', readings(i.sbpReadings));
   numeric('dbp', readings(i.dbpReadings));
   for (const k of ['hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'height', 'weight', 'age', 'pesMeasured', 'edp', 'eOverEPrime', 'lvids', 'pwts', 'tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse'] as NumericKey[]) numeric(k);
-  rows.push({ label: 'Rhythm', value: i.rhythm, source: '' });
+  rows.push({ label: 'Rhythm', value: RHYTHM_WORDS[i.rhythm], source: sources.rhythm ?? '' });
   const valves = [
     i.aorticStenosis && 'aortic stenosis',
     i.aorticRegurgitation && 'aortic regurgitation',
@@ -163,13 +170,24 @@ function inputRows(a: Assessment, sources: Readonly<Record<string, string>> = {}
   return rows;
 }
 
-/** Word-wrap a paragraph to a width. */
+/**
+ * The one word-wrapper for prose on a terminal: a paragraph broken into
+ * lines of at most `width` characters (a single word longer than that keeps
+ * its own line), counting characters, not bytes; a percent sign stays with its number.
+ */
 export function wrap(text: string, width: number): string[] {
-  const words = text.split(/\s+/);
+  // A unit written after a space ("75 %", "12 mmHg") stays on its number's line for the percent sign.
+  const words: string[] = [];
+  for (const w of text.split(/\s+/)) {
+    if (w === '') continue;
+    if (/^%/.test(w) && words.length > 0) words[words.length - 1] += ' ' + w;
+    else words.push(w);
+  }
   const lines: string[] = [];
   let current = '';
+  const len = (t: string) => [...t].length;
   for (const w of words) {
-    if (current && current.length + 1 + w.length > width) {
+    if (current && len(current) + 1 + len(w) > width) {
       lines.push(current);
       current = w;
     } else current = current ? current + ' ' + w : w;
@@ -178,3 +196,13 @@ export function wrap(text: string, width: number): string[] {
   return lines;
 }
 
+/** A paragraph wrapped to the screen width with every line indented. */
+export function wrapIndented(text: string, width: number, indent: string): string[] {
+  return wrap(text, Math.max(20, width - [...indent].length)).map((l) => indent + l);
+}
+
+/** A bullet item wrapped to the screen width: "  • text", continuation lines aligned under the text. */
+export function bullet(text: string, width: number, mark = '•', indent = '  '): string[] {
+  const hang = indent + '  ';
+  return wrap(text, Math.max(20, width - [...hang].length)).map((l, i) => (i === 0 ? `${indent}${mark} ${l}` : hang + l));
+}

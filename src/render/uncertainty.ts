@@ -5,20 +5,13 @@
  */
 import type { Assessment } from '../assessment/assess.js';
 import type { ResultKey } from '../assessment/graph/index.js';
-import type { ErrorInputKey } from '../assessment/error-model.js';
 import { formatCount, withIntervals, type Share, type UncertaintyReport } from '../assessment/uncertainty.js';
 import { decimalsFor, formatNumber, formatValue, pad } from './format.js';
 import { assessmentToJson } from './json.js';
 import { plainStyle, type Style } from './style.js';
-import { renderTerminal, type TerminalOptions } from './terminal.js';
+import { renderTerminal, wrap, type TerminalOptions } from './terminal.js';
+import { CALIBRATED_EES_LABEL, CALIBRATION_SHIFT_NOTE, INPUT_SHORT_NAMES, provenanceWords } from '../assessment/labels.js';
 
-/** Short names of the inputs, as a reader of an echo report says them. */
-export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
-  sbp: 'SBP', dbp: 'DBP', hr: 'heart rate', edv: 'EDV', esv: 'ESV', ef: 'reported EF', sv: 'Doppler SV',
-  lvotDiameter: 'LVOT diameter', lvotVti: 'LVOT VTI', pep: 'PEP', et: 'ET', pesMeasured: 'measured Pes',
-  height: 'height', weight: 'weight', tapse: 'TAPSE', trVelocity: 'TR velocity', rap: 'right-atrial pressure',
-  ivc: 'IVC diameter', ivcCollapse: 'IVC collapse',
-};
 
 const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'pes', label: 'Pes' },
@@ -31,7 +24,7 @@ const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'normalizedElastanceEst', label: 'ENd(est)' },
   { key: 'ees', label: 'Ees' },
   { key: 'eaEes', label: 'Ea/Ees' },
-  { key: 'v0', label: 'V0' },
+  { key: 'v0', label: 'V0(ES)' },
   { key: 'pasp', label: 'PASP' },
   { key: 'tapsePasp', label: 'TAPSE/PASP' },
 ];
@@ -60,7 +53,7 @@ function shareList(shares: readonly Share[], limit = 5): string {
 /** The sentence naming the measurement to repeat. */
 export function driverAdvice(report: UncertaintyReport): string {
   const d = report.driver;
-  if (!d && !report.outputs.ees) return 'Ees is not computable at these inputs (see the checks): no range for it and no measurement to repeat.';
+  if (!d && !report.outputs.ees) return 'Ees is not computable at these inputs (see the checks): no interval for it and no measurement to repeat.';
   if (!d) return 'No input error reaches Ees or Ea/Ees: nothing to repeat.';
   const target = d.output === 'ees' ? 'Ees' : 'Ea/Ees';
   const name = INPUT_SHORT_NAMES[d.input];
@@ -71,53 +64,57 @@ export function driverAdvice(report: UncertaintyReport): string {
 /** The terminal section "Uncertainty". */
 export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: Style = plainStyle): { title: string; lines: string[] } {
   const lines: string[] = [];
+  // Prose wraps to the screen (the section is indented by two columns).
+  const prose = (text: string, style: (t: string) => string = (t) => t) => lines.push(...wrap(text, Math.max(20, s.width - 2)).map(style));
   const r = a.results;
-  lines.push(s.dim(`Monte Carlo, ${formatCount(report.draws)} draws, seed ${report.seed}; 95 % ranges are the 2.5th–97.5th percentiles over the draws in which each value is computable.`));
+  prose(`Monte Carlo, ${formatCount(report.draws)} draws, seed ${report.seed}; 95 % intervals are the 2.5th–97.5th percentiles over the draws in which each value is computable.`, s.dim);
   lines.push(s.strong('Measurement error (inputs only):'));
   for (const row of INTERVAL_ROWS) {
     const spread = report.outputs[row.key];
     if (!spread) continue;
     const unit = r[row.key].unit;
     const note = spread.computableFraction < 1 ? s.dim(`  computable in ${percent(spread.computableFraction)} of draws`) : '';
-    lines.push(`  ${pad(row.label, 16)}${pad(formatValue(spread.value, unit), 16)}95 % ${range(spread.interval95, unit)}${note}`);
+    lines.push(`  ${pad(row.label, 16)}${pad(formatValue(spread.value, unit), 16)}95 % interval ${range(spread.interval95, unit)}${note}`);
   }
   const e = report.ees;
-  lines.push(
+  prose(
     e.notComputableFraction > 0
       ? `Ees not computable in ${percent(e.notComputableFraction)} of draws: an input it needs drawn outside its physical range in ${percent(e.inadmissibleInputs)}, ` +
-          `tNd outside the curve's window in ${percent(e.tNdOutsideWindow)}, DBP not above ENd(est)·Pes in ${percent(e.eesNotPositive)}; the ranges use the other draws.`
+          `tNd outside the curve's window in ${percent(e.tNdOutsideWindow)}, DBP not above ENd(est)·Pes in ${percent(e.eesNotPositive)}; the intervals use the other draws.`
       : 'Ees was computable in every draw.',
   );
   const c = report.coupling;
   if (c.probabilityAbove !== null) {
-    lines.push(
+    prose(
       `Probability that Ea/Ees exceeds ${c.cutoff}: ${percent(c.probabilityAbove)} from measurement error` +
         (c.probabilityAboveWithMethodError !== null ? `; ${percent(c.probabilityAboveWithMethodError)} with the method's own error added.` : '.'),
     );
+    if (c.probabilityAboveWithMethodError !== null) prose(CALIBRATION_SHIFT_NOTE, s.dim);
   }
   const m = report.methodError;
-  lines.push(s.strong(`Method error (single-beat vs invasive Ees; Chen 2001: Ees = ${m.slope}·Ees(sb) + ${m.intercept.toFixed(2)}, SEE ${m.see} mmHg/mL):`));
+  prose(`Method error (single-beat vs invasive Ees; Chen 2001: Ees = ${m.slope}·Ees(sb) + ${m.intercept.toFixed(2)}, SEE ${m.see} mmHg/mL):`, s.strong);
   if (m.calibratedEes === null) {
     lines.push('  not available: Ees is not computable at these inputs.');
   } else {
-    lines.push(`  ${pad('Ees, method error only', 36)}${range(m.eesMethodOnly, 'mmHg/mL')}  (invasive Ees this estimate predicts: ${formatValue(m.calibratedEes, 'mmHg/mL')})`);
+    lines.push(`  ${pad(CALIBRATED_EES_LABEL, 50)}${formatValue(m.calibratedEes, 'mmHg/mL')}`);
+    lines.push(`  ${pad('Ees, method error only', 36)}${range(m.eesMethodOnly, 'mmHg/mL')}`);
     lines.push(`  ${pad('Ees, measurement + method error', 36)}${range(m.eesCombined, 'mmHg/mL')}`);
     lines.push(`  ${pad('Ea/Ees, method error only', 36)}${range(m.eaEesMethodOnly, '')}`);
     lines.push(`  ${pad('Ea/Ees, measurement + method error', 36)}${range(m.eaEesCombined, '')}`);
   }
-  lines.push(s.strong(`Which input drives the spread (share of variance, one input at a time, ${formatCount(report.sensitivityMethod.drawsPerInput)} draws each):`));
+  prose(`Which input drives the spread (share of variance, one input at a time, ${formatCount(report.sensitivityMethod.drawsPerInput)} draws each):`, s.strong);
   lines.push(`  ${pad('Ees', 8)}${shareList(report.sensitivity.ees)}`);
   lines.push(`  ${pad('Ea/Ees', 8)}${shareList(report.sensitivity.eaEes)}`);
   lines.push(`  ${pad('Ea', 8)}${shareList(report.sensitivity.ea)}`);
   if (report.sensitivity.tapsePasp.length) lines.push(`  ${pad('TAPSE/PASP', 8)}  ${shareList(report.sensitivity.tapsePasp)}`);
-  lines.push(s.strong(driverAdvice(report)));
-  lines.push(s.strong('Error model (SD of each input as used; override with --error input=value or "errors" in a visit file):'));
+  prose(driverAdvice(report), s.strong);
+  prose('Error model (SD of each input as used; override with --error input=value or "errors" in a visit file):', s.strong);
   for (const spec of report.errorModel) {
     const unit = spec.unit === '%' ? 'points' : spec.unit;
     const sd = `${formatNumber(spec.sd, spec.sd < 1 ? 2 : 1)}${unit ? ' ' + unit : ''}`;
-    lines.push(`  ${pad(INPUT_SHORT_NAMES[spec.input], 14)}${pad(sd, 12)}${s.dim(`${spec.basis} [${spec.provenance}]`)}`);
+    lines.push(`  ${pad(INPUT_SHORT_NAMES[spec.input], 14)}${pad(sd, 12)}${s.dim(`${spec.basis} [${provenanceWords(spec.provenance)}]`)}`);
   }
-  lines.push(s.dim('Sources of the defaults: docs/uncertainty.md. Errors are taken as independent and normal.'));
+  prose('Sources of the defaults, with their exact provenance: docs/uncertainty.md. Errors are taken as independent and normal.', s.dim);
   return { title: 'Uncertainty: how sure are these numbers', lines };
 }
 
@@ -192,25 +189,32 @@ export function assessmentToJsonWithUncertainty(a: Assessment, report: Uncertain
 
 /**
  * Lines under the series table (`record show --uncertainty`): each visit's
- * 95 % ranges from measurement error, and the not-computable share of Ees.
+ * 95 % intervals from measurement error, and the not-computable share of Ees.
+ * Each cell is padded to the widest of its column, so the table stays
+ * aligned whatever the number of digits.
  */
 export function seriesIntervalLines(entries: readonly { index: number; date: string; assessment: Assessment }[], reports: readonly UncertaintyReport[], s: Style = plainStyle): string[] {
   const lines: string[] = [];
   const first = reports[0];
   if (!first) return lines;
-  lines.push(s.heading('95 % ranges from measurement error'));
-  lines.push(s.dim(`  Monte Carlo, ${formatCount(first.draws)} draws per visit, seed ${first.seed}; error model and method in docs/uncertainty.md.`));
+  lines.push(s.heading('95 % intervals from measurement error'));
+  lines.push(...wrap(`Monte Carlo, ${formatCount(first.draws)} draws per visit, seed ${first.seed}; error model and method in docs/uncertainty.md.`, s.width - 2).map((l) => s.dim('  ' + l)));
+  const keys = [['Pes', 'pes'], ['Ea', 'ea'], ['Ees', 'ees'], ['Ea/Ees', 'eaEes']] as const;
+  const cells = entries.map((e, i) => {
+    const report = reports[i]!;
+    return keys.map(([label, key]) => {
+      const spread = report.outputs[key];
+      const d = decimalsFor(e.assessment.results[key].unit);
+      return spread ? `${label} ${formatNumber(spread.value, d)} (${formatNumber(spread.interval95[0], d)} to ${formatNumber(spread.interval95[1], d)})` : `${label} —`;
+    });
+  });
+  const widths = keys.map((_, k) => Math.max(...cells.map((row) => [...row[k]!].length)));
   entries.forEach((e, i) => {
     const report = reports[i]!;
-    const r = e.assessment.results;
-    const cell = (label: string, key: 'pes' | 'ea' | 'ees' | 'eaEes') => {
-      const spread = report.outputs[key];
-      const d = decimalsFor(r[key].unit);
-      return spread ? `${label} ${formatNumber(spread.value, d)} (${formatNumber(spread.interval95[0], d)} to ${formatNumber(spread.interval95[1], d)})` : `${label} —`;
-    };
     const missing = report.ees.notComputableFraction > 0 ? s.dim(`  Ees not computable in ${percent(report.ees.notComputableFraction)} of draws`) : '';
-    lines.push(`  ${pad(String(e.index), 3)} ${pad(e.date, 11)} ${[cell('Pes', 'pes'), cell('Ea', 'ea'), cell('Ees', 'ees'), cell('Ea/Ees', 'eaEes')].join('  ')}${missing}`);
+    const row = cells[i]!.map((c, k) => pad(c, widths[k]!)).join('  ');
+    lines.push(`  ${pad(String(e.index), 3)} ${pad(e.date, 11)} ${(row + missing).trimEnd()}`);
   });
-  lines.push(s.dim('  `elastimate record compare` judges each change against the combined noise of its two visits.'));
+  lines.push(...wrap('`elastimate record compare` judges each change against the combined noise of its two visits.', s.width - 2).map((l) => s.dim('  ' + l)));
   return lines;
 }

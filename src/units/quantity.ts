@@ -5,6 +5,7 @@
  * bundle on first use (about 0.05 s) rather than its module tree (about 0.6 s).
  */
 import { InputError, showValue } from '../errors.js';
+import { commonUnitFactor } from './common-units.js';
 import { loadMathjs } from './mathjs-loader.js';
 
 export type QuantityKind = 'pressure' | 'volume' | 'time' | 'rate' | 'percent' | 'length' | 'excursion' | 'velocity' | 'mass' | 'ratio';
@@ -91,7 +92,11 @@ interface MathBundle {
 }
 
 let bundle: MathBundle | undefined;
-/** mathjs, loaded once and only when a value carries a unit. */
+/** Whether mathjs has been loaded in this process (a test checks the common units never load it). */
+export function mathjsLoaded(): boolean {
+  return bundle !== undefined;
+}
+/** mathjs, loaded once and only when a value carries a unit outside the common-units table. */
 export function mathjs(): MathBundle {
   if (!bundle) {
     bundle = loadMathjs<MathBundle>();
@@ -135,6 +140,13 @@ function withUnit(field: string, raw: unknown, kind: QuantityKind): number {
     throw new InputError({ field, value: showValue(raw), reason: 'a number must come before the unit', accepted });
   }
 
+  // The trade's common units (src/units/common-units.ts): a table, not mathjs.
+  const common = /^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(\S(?:.*\S)?)$/.exec(text);
+  if (common) {
+    const factor = commonUnitFactor(common[2]!, kind);
+    if (factor !== undefined) return roundedConversion(bareNumber(common[1]!) * factor, field, raw, accepted);
+  }
+
   // Heart rate: "bpm" and "/min" are the trade's spellings; mathjs writes a count per minute as min^-1.
   const normalised = kind === 'rate' ? text.replace(/\s*(bpm|\/\s*min)$/i, ' min^-1') : text;
   const math = mathjs();
@@ -148,10 +160,18 @@ function withUnit(field: string, raw: unknown, kind: QuantityKind): number {
   if (!unit.equalBase(math.unit(`1 ${target}`))) {
     throw new InputError({ field, value: showValue(raw), reason: `not a ${kind} unit`, accepted });
   }
-  // Unit conversion leaves binary noise ("230 cm" → 230.00000000000003 cm), which would push a
-  // value typed at the edge of its range outside it; twelve significant digits are far beyond any
-  // measurement's precision. Bare numbers never get here, so they are never rounded.
-  const value = Number(unit.toNumber(target).toPrecision(12));
+  return roundedConversion(unit.toNumber(target), field, raw, accepted);
+}
+
+/**
+ * A converted value, rounded to twelve significant digits. Unit conversion leaves binary noise
+ * ("230 cm" → 230.00000000000003 cm), which would push a value typed at the edge of its range
+ * outside it; twelve digits are far beyond any measurement's precision, and they make the table's
+ * product and mathjs's conversion the same number. Bare numbers never get here, so they are never
+ * rounded.
+ */
+function roundedConversion(converted: number, field: string, raw: unknown, accepted: string): number {
+  const value = Number(converted.toPrecision(12));
   if (!Number.isFinite(value)) throw new InputError({ field, value: showValue(raw), accepted });
   return value;
 }

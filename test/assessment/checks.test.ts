@@ -56,12 +56,20 @@ describe('validity flags: assumptions of the single-beat method (Chen 2001; comm
     [{ aorticRegurgitation: true }, 'aortic-regurgitation'],
     [{ mitralRegurgitation: true }, 'mitral-regurgitation'],
     [{ outflowObstruction: true }, 'outflow-obstruction'],
-  ])('%j raises the caution %s, and it reaches the caveats and the referral note', (over, code) => {
+  ])('%j raises the caution %s, and it reaches the caveats and the referral note in the trade\'s words', (over, code) => {
     const a = assess(parseInputs({ ...base, ...over }));
     const flag = a.flags.find((f) => f.code === code);
     expect(flag?.level).toBe('caution');
     expect(a.caveats.join(' ')).toContain(flag!.message);
-    expect(a.referral).toContain(code);
+    // The trade's words (common practice), never the internal token.
+    const words: Record<string, string> = {
+      rhythm: 'atrial fibrillation', 'aortic-stenosis': 'aortic stenosis', 'aortic-regurgitation': 'aortic regurgitation',
+      'mitral-regurgitation': 'mitral regurgitation', 'outflow-obstruction': 'outflow-tract obstruction',
+    };
+    const said = code === 'rhythm' && (over as { rhythm?: string }).rhythm === 'other' ? 'a rhythm other than sinus' : words[code];
+    expect(a.referral).toContain(`Method limits apply (${said})`);
+    expect(a.referral).not.toContain(code === 'rhythm' ? 'atrial-fibrillation' : code);
+    if (code === 'rhythm') expect(flag!.message).not.toMatch(/atrial-fibrillation/);
   });
   it('sinus rhythm and absent valve flags raise none of them', () => {
     expect(codesFor({ rhythm: 'sinus', aorticStenosis: false, aorticRegurgitation: false, mitralRegurgitation: false, outflowObstruction: false })).toEqual([]);

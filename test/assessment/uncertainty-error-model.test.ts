@@ -20,9 +20,13 @@ describe('cuff pressure: ISO 81060-2 limits split into a systematic and a random
     expect(cuffMeanSd(3)).toBeCloseTo(6.95, 10);
   });
   it('only the random part shrinks: more readings approach the systematic part, never below it', () => {
-    expect(CUFF_ERROR.systematic).toBeCloseTo(6.36, 2);
-    expect(CUFF_ERROR.random).toBeCloseTo(4.85, 2);
-    expect(cuffMeanSd(5)).toBeCloseTo(Math.sqrt(6.36 ** 2 + 4.85 ** 2 / 5), 1);
+    // Worked by hand from the two ISO limits: a device at both has s² + r² = 8² and s² + r²/3 = 6.95².
+    // Subtracting: r²·(1 − 1/3) = 64 − 48.3025 = 15.6975, so r² = 15.6975 × 3/2 = 23.54625,
+    // r = 4.8524 mmHg (random, per reading); s² = 64 − 23.54625 = 40.45375, s = 6.3603 mmHg (systematic).
+    expect(CUFF_ERROR.systematic).toBeCloseTo(6.3603, 4);
+    expect(CUFF_ERROR.random).toBeCloseTo(4.8524, 4);
+    // Mean of 5 readings: √(40.45375 + 23.54625/5) = √45.16300 = 6.7203 mmHg.
+    expect(cuffMeanSd(5)).toBeCloseTo(6.7203, 4);
     expect(cuffMeanSd(1000)).toBeGreaterThan(CUFF_ERROR.systematic);
     expect(cuffMeanSd(1000)).toBeLessThan(CUFF_ERROR.systematic + 0.01);
   });

@@ -270,6 +270,9 @@ describe("the method's own error: Chen 2001 abstract, Ees = 0.86·Ees(sb) + 0.40
     expect(ees).toBeCloseTo(1.5258, 4); // the worked example, method notes §4
     const centre = 0.86 * ees + 0.4;
     expect(report.methodError.calibratedEes).toBeCloseTo(centre, 12);
+    // By hand: 0.86 × 1.525814 + 0.40 = 1.312200 + 0.40 = 1.712200 mmHg/mL, the invasive Ees the
+    // program predicts for the worked example (calibration from the Chen 2001 abstract).
+    expect(report.methodError.calibratedEes).toBeCloseTo(1.7122, 4);
     expect(CHEN_CALIBRATION.see).toBe(0.64);
     expect(report.methodError.eesMethodOnly![0]).toBeCloseTo(centre - 1.96 * 0.64, 1);
     expect(report.methodError.eesMethodOnly![1]).toBeCloseTo(centre + 1.96 * 0.64, 1);

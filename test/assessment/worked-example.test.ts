@@ -5,7 +5,7 @@
  * Inputs: SBP 120, DBP 80 mmHg, reported EF 60 %, Doppler SV 70 mL, PEP 90 ms,
  * ET 290 ms (the example in the project's method notes §4; its published
  * method is Chen CH et al., J Am Coll Cardiol 2001;38:2028, with the ENd
- * coefficients FROM MEMORY of that paper). Volumes EDV 130 / ESV 55 mL were
+ * coefficients as quoted by secondary implementations, method notes §11). Volumes EDV 130 / ESV 55 mL were
  * chosen so that they disagree a little with both the reported EF (57.7 % vs
  * 60 %) and the Doppler SV (75 vs 70 mL) without tripping a consistency flag:
  * any mix-up of which EF feeds ENd(est), or which SV feeds Ea and Ees, would
@@ -19,11 +19,11 @@ import { parseInputs } from '../../src/assessment/inputs.js';
 const raw = { sbp: 120, dbp: 80, hr: 60, edv: 130, esv: 55, ef: 60, sv: 70, pep: 90, et: 290 };
 
 // ---- By hand ----------------------------------------------------------------
-// Pes = 0.9 × SBP = 0.9 × 120 = 108 mmHg                                (Kelly 1992; Chen 2001)
+// Pes = 0.9 × SBP = 0.9 × 120 = 108 mmHg                                (factor stated in Chen 2001)
 const pes = 0.9 * 120;
-// tNd = PEP / (PEP + ET) = 90 / 380 = 0.2368421                          (Chen 2001, from memory)
+// tNd = PEP / (PEP + ET) = 90 / 380 = 0.2368421                          (Chen 2001, as quoted second-hand)
 const tNd = 90 / (90 + 290);
-// ENd(avg) = Σ aᵢ·tNdⁱ, term by term (coefficients from memory of Chen 2001):
+// ENd(avg) = Σ aᵢ·tNdⁱ, term by term (Chen 2001 coefficients as quoted by secondary implementations):
 //   a0          =  0.35695
 //   a1·t        = −7.2266  × 0.2368421          = −1.7115632
 //   a2·t²       =  74.249  × 0.0560942          =  4.1649370
@@ -64,7 +64,7 @@ const eaEesFromEf = 1 / 0.6 - 1;
 const co = (70 * 60) / 1000;
 const map = 80 + (120 - 80) / 3;
 
-describe('hand-worked single-beat example (method notes §4; Chen 2001 method, ENd coefficients from memory)', () => {
+describe('hand-worked single-beat example (method notes §4; Chen 2001 method, ENd coefficients as quoted by secondary implementations)', () => {
   it('the hand arithmetic reproduces the method notes to their printed digits', () => {
     expect(pes).toBe(108);
     expect(tNd).toBeCloseTo(0.23684, 5);

@@ -109,10 +109,10 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     expect(j.caveats.join(' ')).toMatch(/not a diagnosis/i);
   });
 
-  it('reproduces the hand-worked single-beat example (method-notes §4) and the published relations', async () => {
+  it('reproduces the hand-worked single-beat example (method-notes §4; invented inputs, values computed here)', async () => {
     const r = parseJson(await runCli(['assess', ...WORKED, '--hr', '64', '--json'])).results;
     const v = (k: string): number => r[k]!.value as number;
-    expect(v('pes')).toBeCloseTo(108, 6); // 0.9 × SBP, Kelly 1992
+    expect(v('pes')).toBeCloseTo(108, 6); // 0.9 × 120, the factor as stated in the Chen 2001 abstract
     expect(v('map')).toBeCloseTo(80 + 40 / 3, 6); // DBP + PP/3, common practice
     expect(v('svUsed')).toBeCloseTo(70, 6); // EDV − ESV
     expect(v('co')).toBeCloseTo((70 * 64) / 1000, 6); // SV × HR / 1000, common practice

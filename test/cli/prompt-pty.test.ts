@@ -43,6 +43,7 @@ describe.skipIf(unavailable !== null)(`assess at a terminal${unavailable ? ` (sk
       { expect: 'Brachial diastolic pressure (in mmHg', send: '94, 92' + ENTER },
       { expect: 'Height (in cm', send: '174' + ENTER },
       { expect: 'Weight (in kg', send: '88' + ENTER },
+      { expect: 'Sex (optional; the reference ranges use it)', send: ENTER }, // not given
       // Review: "Compute now" first; move two down to the heart rate and correct it.
       { expect: 'Review: pick a value to correct', send: DOWN + DOWN + ENTER },
       { expect: 'Heart rate (in bpm', send: BACKSPACE.repeat(2) + '70' + ENTER },

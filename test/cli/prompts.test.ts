@@ -83,7 +83,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
     { input: '120', expect: /^LV end-diastolic volume \(in mL, accepted 20–600 mL/ },
     { input: '130', expect: /^LV end-systolic volume/ }, // refused: not below EDV
     { input: '50', expect: /^LV end-systolic volume/ },
-    { input: '', expect: /^Reported ejection fraction/ }, // Enter keeps the implied EF
+    { input: '', expect: /^Reported ejection fraction/ }, // empty leaves EF to the volumes
     { select: 'lvot', expect: /^Doppler stroke volume/ },
     { input: '2.1', expect: /^LVOT diameter \(in cm, accepted 1\.2–3\.5 cm/ },
     { input: '21', expect: /^LVOT velocity–time integral/ },
@@ -94,6 +94,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
     { input: '94,92', expect: /^Brachial diastolic pressure/ },
     { input: '174', expect: /^Height/ },
     { input: '88', expect: /^Weight/ },
+    { select: 'female', expect: /^Sex \(optional/ },
     { select: 'hr', expect: /^Review/ }, // correct the heart rate
     { input: '70', expect: /^Heart rate/ },
     { select: 'compute', expect: /^Review/ },
@@ -107,10 +108,11 @@ describe('collectInteractively: the whole flow from nothing', () => {
     // The refused ESV: the reason names the field, the value and what is accepted.
     expect(log.refusals).toEqual(['esv: got 130 mL; not below EDV 120 mL; accepted: ESV lower than EDV']);
 
-    // The implied EF is shown right before the EF question, which offers it as the default.
+    // The implied EF is shown right before the EF question, which names it but offers no default.
     const efAt = log.events.findIndex((e) => e.startsWith('? Reported ejection fraction'));
     expect(log.events[efAt - 1]).toMatch(/^The volumes imply EF 58 %/); // (120 − 50)/120 = 58.3 %, Lang 2015
-    expect(log.events[efAt + 1]).toBe('= 58');
+    expect(log.events[efAt]).toContain('leave empty to use the 58 % the volumes imply');
+    expect(log.events[efAt + 1]).not.toMatch(/^= /);
     // tNd after the timing intervals, the mean after several readings, the Doppler SV after the LVOT.
     expect(log.notes).toContain('Normalized time tNd = PEP/(PEP + ET) = 0.250.'); // 95/(95 + 285), Chen 2001
     expect(log.notes).toContain('SBP: mean of 2 readings 150 mmHg.');
@@ -120,7 +122,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
     expect(raw).toEqual({
       rhythm: 'sinus', hr: 70, edv: 120, esv: 50, lvotDiameter: 2.1, lvotVti: 21, pep: 95, et: '0.285 s',
       aorticStenosis: false, aorticRegurgitation: false, mitralRegurgitation: false, outflowObstruction: false,
-      sbp: [152, 148], dbp: [94, 92], height: 174, weight: 88,
+      sbp: [152, 148], dbp: [94, 92], height: 174, weight: 88, sex: 'female',
     });
 
     const a = assess(parseInputs(raw));
@@ -156,6 +158,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
       'Brachial diastolic pressure: 94, 92 mmHg (mean 93 mmHg)',
       'Height: 174 cm',
       'Weight: 88 kg',
+      'Sex: female',
     ]));
     expect(after).toContain('Heart rate: 70 bpm');
     // The correction offers the current value as its default.
@@ -175,12 +178,14 @@ describe('collectInteractively: only what is missing', () => {
       { input: '290', expect: /^Ejection time/ },
       { input: '', expect: /^Height/ },
       { input: '', expect: /^Weight/ },
+      { select: 'not-given', expect: /^Sex/ },
       { select: 'compute' },
     ]);
     const raw = await collectInteractively(partial, { ask });
     expect(log.events.filter((e) => e.startsWith('? ')).map((e) => e.slice(2, 12))).toEqual([
-      'Reported e', 'Doppler st', 'Pre-ejecti', 'Ejection t', 'Height (in', 'Weight (in', 'Review: pi',
+      'Reported e', 'Doppler st', 'Pre-ejecti', 'Ejection t', 'Height (in', 'Weight (in', 'Sex (optio', 'Review: pi',
     ]);
+    expect(raw).not.toHaveProperty('sex');
     expect(raw).toMatchObject({ ...partial, ef: 55, pep: 90, et: 290 });
     // Values from flags arrive as text; plain numbers still show their unit on review.
     const review = log.selects.find((q) => q.message.startsWith('Review'))!.choices.map((c) => c.name);
@@ -190,8 +195,20 @@ describe('collectInteractively: only what is missing', () => {
     expect(assess(parseInputs(raw)).results.efUsed.value).toBe(55);
   });
 
+  it('keeps a typed EF that equals the EF the volumes imply as the reported EF', async () => {
+    // EDV 120, ESV 50 imply (120 − 50)/120 = 58.3 %, shown as 58: typing 58 reports 58 % (Lang 2015 EF definition).
+    const partial: RawInputs = { sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, rhythm: 'sinus', sv: 70, pep: 90, et: 290, height: 170, weight: 70, sex: 'female', aorticStenosis: false };
+    const { ask } = scripted([{ input: '58', expect: /^Reported ejection fraction/ }, { select: 'compute' }]);
+    const raw = await collectInteractively(partial, { ask });
+    expect(raw.ef).toBe(58);
+    const a = assess(parseInputs(raw));
+    expect(a.inputs.ef).toBe(58);
+    expect(a.results.efUsed.value).toBe(58);
+    expect(a.results.efUsed.method).toBe('reported');
+  });
+
   it('asks again for a given value that is refused, saying why', async () => {
-    const partial: RawInputs = { sbp: 120, dbp: 80, edv: 'abc', esv: 50, ef: 60, pep: 90, et: 290, hr: 64, rhythm: 'sinus', sv: 70, height: 170, weight: 70, outflowObstruction: false };
+    const partial: RawInputs = { sbp: 120, dbp: 80, edv: 'abc', esv: 50, ef: 60, pep: 90, et: 290, hr: 64, rhythm: 'sinus', sv: 70, height: 170, weight: 70, sex: 'male', outflowObstruction: false };
     const { ask, log } = scripted([
       { input: '120', expect: /^LV end-diastolic volume/ },
       { select: 'compute' },
@@ -203,7 +220,7 @@ describe('collectInteractively: only what is missing', () => {
   });
 
   it('catches a given value that contradicts an earlier answer (ESV given, EDV answered lower)', async () => {
-    const partial: RawInputs = { sbp: 120, dbp: 80, esv: 130, ef: 60, pep: 90, et: 290, hr: 64, rhythm: 'sinus', sv: 70, height: 170, weight: 70, aorticStenosis: false };
+    const partial: RawInputs = { sbp: 120, dbp: 80, esv: 130, ef: 60, pep: 90, et: 290, hr: 64, rhythm: 'sinus', sv: 70, height: 170, weight: 70, sex: 'female', aorticStenosis: false };
     const { ask, log } = scripted([
       { input: '120', expect: /^LV end-diastolic volume/ },
       { input: '50', expect: /^LV end-systolic volume/ },
@@ -217,7 +234,7 @@ describe('collectInteractively: only what is missing', () => {
 
 describe('collectInteractively: suggestions (the previous visit) are offered as defaults', () => {
   it('pre-selects rhythm, pre-fills height and pre-checks valve flags', async () => {
-    const suggestions: Partial<RawInputs> = { height: 174, rhythm: 'atrial-fibrillation', mitralRegurgitation: true };
+    const suggestions: Partial<RawInputs> = { height: 174, rhythm: 'atrial-fibrillation', mitralRegurgitation: true, sex: 'male' };
     const { ask, log } = scripted([
       { select: 'atrial-fibrillation' },
       { input: '' }, // heart rate skipped
@@ -233,10 +250,12 @@ describe('collectInteractively: suggestions (the previous visit) are offered as 
       { input: '80' },
       { input: '', expect: /^Height/ }, // takes the suggested 174
       { input: '' },
+      { select: 'male', expect: /^Sex/ }, // the suggested sex is pre-selected
       { select: 'compute' },
     ]);
     const raw = await collectInteractively({}, { ask, suggestions });
     expect(log.selects[0]!.default).toBe('atrial-fibrillation');
+    expect(log.selects.find((q) => q.message.startsWith('Sex'))!.default).toBe('male');
     expect(log.texts.find((q) => q.message.startsWith('Height'))!.default).toBe('174');
     expect(log.checkboxes[0]!.choices.filter((c) => c.checked).map((c) => c.value)).toEqual(['mitralRegurgitation']);
     expect(raw).toMatchObject({ rhythm: 'atrial-fibrillation', height: 174, mitralRegurgitation: true, sv: '0.07 L', sbp: '16.5kPa' });
@@ -254,7 +273,7 @@ describe('collectInteractively: suggestions (the previous visit) are offered as 
 });
 
 describe('collectInteractively: the review screen', () => {
-  const complete: RawInputs = { rhythm: 'sinus', hr: 64, edv: 120, esv: 50, pep: 90, et: 290, sbp: 120, dbp: 80, aorticStenosis: false, height: 170, weight: 70, sv: 70 };
+  const complete: RawInputs = { rhythm: 'sinus', hr: 64, edv: 120, esv: 50, pep: 90, et: 290, sbp: 120, dbp: 80, aorticStenosis: false, height: 170, weight: 70, sex: 'female', sv: 70 };
 
   it('refuses a correction that contradicts another value (EDV below ESV), then shows the new implied EF', async () => {
     const { ask, log } = scripted([
@@ -366,14 +385,14 @@ describe('the checks behind every question', () => {
     expect(entryProblem('esv', 120, { edv: 120 }, 'flow', false)).toBe('esv: got 120 mL; not below EDV 120 mL; accepted: ESV lower than EDV');
   });
 
-  it('offers the implied EF while none is reported, and the reported one once given', () => {
+  it('names the implied EF without offering it as a default while none is reported, and offers the reported one once given', () => {
     const fresh = efQuestion({ edv: 120, esv: 50 }, 'flow');
-    expect(fresh.default).toBe('58'); // (120 − 50)/120 = 58.3 %
-    expect(fresh.message).toContain('Enter keeps the 58 % the volumes imply');
+    expect(fresh.default).toBeUndefined();
+    expect(fresh.message).toContain('leave empty to use the 58 % the volumes imply'); // (120 − 50)/120 = 58.3 %
     const reported = efQuestion({ edv: 120, esv: 50, ef: 61 }, 'all');
     expect(reported.default).toBe('61');
     expect(reported.message).toContain('the volumes imply 58 %');
-    expect(reported.message).not.toContain('Enter keeps');
+    expect(reported.message).not.toContain('leave empty');
     expect(efQuestion({}, 'flow').default).toBeUndefined();
   });
 
@@ -428,12 +447,12 @@ describe('our questions rendered by inquirer (@inquirer/testing)', () => {
     await expect(answer).resolves.toBe('152, 148');
   });
 
-  it('offers the implied EF as the default of the reported EF', async () => {
+  it('names the implied EF in the reported-EF question; Enter on nothing leaves EF to the volumes', async () => {
     const { answer, events, getScreen } = await render(input, efQuestion({ edv: 120, esv: 50 }, 'flow'));
-    expect(getScreen()).toContain('Enter keeps the 58 % the volumes imply');
-    expect(getScreen()).toContain('(58)');
+    expect(getScreen()).toContain('leave empty to use the 58 % the volumes imply');
+    expect(getScreen()).not.toContain('(58)');
     events.keypress('enter');
-    await expect(answer).resolves.toBe('58');
+    await expect(answer).resolves.toBe('');
   });
 
   it('a unit on the answer is converted; a unit of the wrong kind is refused', async () => {

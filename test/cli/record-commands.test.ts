@@ -108,6 +108,13 @@ describe('record add / show / compare', () => {
     expect(run.stdout).toContain('subject HT-014 · female · born 1968 · 2 visits');
     expect(run.stdout).toContain(`methods ${METHODS_VERSION}`);
     expect(run.stdout).toMatch(/#\s+date\s+HR\s+SBP\/DBP\s+EF\s+SV\s+Pes\s+Ea\s+Ees\s+Ea\/Ees/);
+    // Visit 2 worked by hand (invented inputs VISIT_2, SBP typed as 18.665 kPa = 140.0 mmHg):
+    //   SV = EDV − ESV = 125 − 55 = 70 mL (no Doppler SV given); Pes = 0.9 × 140 = 126 mmHg, visit 1
+    //   0.9 × 120 = 108, so 126/108 = 1.1667 → +17 %; Ea = 126/70 = 1.80, visit 1 108/70 = 1.5429,
+    //   1.80/1.5429 = 1.1667 → +17 %; Ees (Chen 2001 formula, both visits tNd = 90/380 = 0.236842,
+    //   ENd(avg) 0.336141): ENd(est) = 0.0275 − 0.165·0.56 + 0.3656·90/126 + 0.515·0.336141 = 0.369355,
+    //   Ees = (90 − 0.369355·126)/(0.369355·70) = 1.680968 (shown 1.68), visit 1 1.525814 (method notes
+    //   §4), 1.680968/1.525814 = 1.1017 → +10 %.
     expect(run.stdout).toMatch(/2\s+2024-04-10\s+75\s+140\/90\s+56\s+70\s+126 \+17%\s+1\.80 \+17%\s+1\.68 \+10%/);
     expect(run.stdout).toMatch(/research use only/i);
     expect(run.stdout).toMatch(/licensed clinical practice/);
@@ -131,7 +138,7 @@ describe('record add / show / compare', () => {
     expect(text.stdout).toContain('visit 1 (2024-01-10) → visit 2 (2024-04-10)');
     expect(text.stdout).toMatch(/heart rate \(Δln HR\)\s+\+0\.223/);
     expect(text.stdout).toMatch(/resistance \(Δln TPR\)\s+-0\.090/);
-    expect(text.stdout).toMatch(/within measurement noise/);
+    expect(text.stdout).toMatch(/within the least significant change/);
     const json = JSON.parse(ok(await runCli(['record', 'compare', file(), '1', '2', '--json'])).stdout) as { format: string; methodsVersion: string; from: unknown; to: unknown; rows: { key: string; logChange: number; verdict: string; lsc: { logLimit: number } }[]; summary: string[] };
     expect(json.format).toBe('elastimate-comparison');
     expect(json.methodsVersion).toBe(METHODS_VERSION);

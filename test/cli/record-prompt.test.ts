@@ -13,6 +13,7 @@ import { FORBIDDEN_WORDS, STACK_FRAME, requireBuild } from './fixtures/run-cli.j
 import { ptyUnavailable, runInPty } from './fixtures/pty.js';
 
 const ENTER = '\r';
+const UP = '\x1b[A';
 const unavailable = ptyUnavailable();
 
 const previous: SubjectFile = {
@@ -67,5 +68,38 @@ describe.skipIf(unavailable !== null)(`record add at a terminal${unavailable ? `
     const stored = JSON.parse(readFileSync(path, 'utf8')) as SubjectFile;
     expect(stored.visits[1]!.inputs).toMatchObject({ et: 250, height: 181, weight: 92, rhythm: 'atrial-fibrillation', mitralRegurgitation: true, sv: 58 });
     expect(stored.visits[1]!.inputs.sex).toBeUndefined(); // sex stays with the subject
+  }, 90_000);
+
+  it('asks for the subject\'s sex when none is recorded and stores the answer with the subject', async () => {
+    const path = join(dir, 'hf-078.subject.json');
+    writeFileSync(path, JSON.stringify({ ...previous, subject: { id: 'HF-078' } }), { mode: 0o600 });
+    const run = await runInPty(['record', 'add', path, '--date', '2024-04-15', '--sbp', '108', '--dbp', '68', '--hr', '80', '--edv', '205', '--esv', '145', '--sv', '58', '--pep', '124', '--height', '181', '--weight', '92', '--rhythm', 'sinus'], [
+      { expect: 'Reported ejection fraction (in %', send: ENTER },
+      { expect: 'Ejection time (in ms', send: '250' + ENTER },
+      { expect: 'Valve and outflow findings', send: ENTER },
+      { expect: 'Sex (optional; the reference ranges use it)', send: UP + ENTER }, // from "not given" up to "male"
+      { expect: 'Review: pick a value to correct', send: ENTER },
+      { expect: 'visit 2 of 2 on 2024-04-15' },
+    ]);
+    expect(run.reason, run.screen.slice(-3000)).toBe('');
+    expect(run.failedStep).toBeNull();
+    expect(run.exitCode).toBe(0);
+    const stored = JSON.parse(readFileSync(path, 'utf8')) as SubjectFile;
+    expect(stored.subject.sex).toBe('male');
+    expect(stored.visits[1]!.inputs.sex).toBeUndefined();
+  }, 90_000);
+
+  it('asks before a second visit on a date that already has one; "no" leaves the file as it was', async () => {
+    const path = join(dir, 'hf-079.subject.json');
+    const before = JSON.stringify({ ...previous, subject: { id: 'HF-079', sex: 'male' } });
+    writeFileSync(path, before, { mode: 0o600 });
+    const run = await runInPty(['record', 'add', path, '--date', '2024-01-15', '--sbp', '108', '--dbp', '68', '--hr', '80', '--edv', '205', '--esv', '145', '--pep', '124', '--et', '250'], [
+      { expect: 'already has a visit on 2024-01-15. Add another visit on that date?', send: 'n' + ENTER },
+      { expect: 'Nothing changed.' },
+    ]);
+    expect(run.reason, run.screen.slice(-3000)).toBe('');
+    expect(run.failedStep).toBeNull();
+    expect(run.exitCode).toBe(0);
+    expect(readFileSync(path, 'utf8')).toBe(before);
   }, 90_000);
 });

@@ -14,7 +14,7 @@ function modelBeat(ees: number, ea: number, edv: number) {
 }
 
 describe('coupling ratio Ea/Ees', () => {
-  it('worked example of the method notes: Ea 1.5429, Ees 1.5258 → 1.0112 (computed from Chen 2001 inputs)', () => {
+  it('worked example of the method notes (invented inputs, computed here): Ea 1.5429, Ees 1.5258 → 1.5429/1.5258 = 1.0112', () => {
     expect(couplingRatio(1.5429, 1.5258)).toBeCloseTo(1.0112, 4);
   });
 

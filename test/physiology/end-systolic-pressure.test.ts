@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { endSystolicPressureFromSystolic, endSystolicPressureWeighted } from '../../src/physiology/end-systolic-pressure.js';
 
 describe('end-systolic pressure from the cuff', () => {
-  it('0.9 × brachial SBP, the "P(s) × 0.9" term of the Chen 2001 single-beat formula (Chen CH et al., JACC 2001;38:2028 abstract; Kelly 1992): 120 → 108 mmHg', () => {
+  it('0.9 × brachial SBP, the "P(s) × 0.9" term of the Chen 2001 single-beat formula (stated in the Chen CH et al. abstract, JACC 2001;38:2028; not in the Kelly 1992 abstract): 120 → 0.9 × 120 = 108 mmHg', () => {
     expect(endSystolicPressureFromSystolic(120)).toBeCloseTo(108, 12);
     expect(endSystolicPressureFromSystolic(150)).toBeCloseTo(135, 12);
   });

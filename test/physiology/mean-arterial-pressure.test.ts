@@ -9,10 +9,10 @@ describe('mean arterial pressure', () => {
   it('equals the usual (2·DBP + SBP)/3 form (common practice)', () => {
     expect(meanArterialPressure(150, 95)).toBeCloseTo((2 * 95 + 150) / 3, 10);
   });
-  it('Meaney E et al., Heart 2000;84:64: DBP + 0.412·PP (coefficient from memory; matches the secondary abstract in Hypertens Res 2016): 120/80 → 96.48 mmHg', () => {
+  it('DBP + 0.412·PP (Meaney E et al., Heart 2000;84:64, the coefficient as quoted from it in Hypertens Res 2016): 120/80 → 80 + 0.412 × 40 = 96.48 mmHg', () => {
     expect(meanArterialPressureMeaney(120, 80)).toBeCloseTo(96.48, 10);
   });
-  it('Meaney puts MAP 42.2 % of the way up the pulse pressure on average in brachial tonometry (PubMed 32694334: 42.2 ± 5.5 %); 0.412 is within that spread', () => {
+  it('Meaney 2000\'s 0.412 lies within the spread of a later brachial-tonometry study, where MAP sat 42.2 ± 5.5 % of the way up the pulse pressure (PubMed 32694334, n = 1526)', () => {
     const fraction = (meanArterialPressureMeaney(140, 90) - 90) / (140 - 90);
     expect(Math.abs(fraction - 0.422)).toBeLessThan(0.055);
   });

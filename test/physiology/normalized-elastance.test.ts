@@ -4,20 +4,21 @@ import {
 } from '../../src/physiology/normalized-elastance.js';
 
 // Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034. The abstract gives the method but not the
-// coefficients: the polynomial and the ENd(est) coefficients below are FROM MEMORY of the paper
-// (see docs/methods-verification.md §1); these tests check the code against them, not the paper.
-const FROM_MEMORY_COEFFICIENTS = [0.35695, -7.2266, 74.249, -307.39, 684.54, -856.92, 571.95, -159.1];
+// coefficients: the polynomial and the ENd(est) coefficients below are as quoted by two independent
+// secondary implementations that cite Chen 2001, copied from the project's method notes §11; the
+// paper's own table was not read. These tests check the code against that copy, not the paper.
+const METHOD_NOTES_COEFFICIENTS = [0.35695, -7.2266, 74.249, -307.39, 684.54, -856.92, 571.95, -159.1];
 
 function polynomialTermByTerm(t: number): number {
-  return FROM_MEMORY_COEFFICIENTS.reduce((sum, a, i) => sum + a * t ** i, 0);
+  return METHOD_NOTES_COEFFICIENTS.reduce((sum, a, i) => sum + a * t ** i, 0);
 }
 
-describe('ENd(avg), the group-averaged normalized elastance (Chen 2001; coefficients from memory)', () => {
-  it('uses the eight coefficients recalled from the paper', () => {
-    expect([...NORMALIZED_ELASTANCE_COEFFICIENTS]).toEqual(FROM_MEMORY_COEFFICIENTS);
+describe('ENd(avg), the group-averaged normalized elastance (Chen 2001; coefficients as quoted by secondary implementations)', () => {
+  it('holds the eight coefficients against a copy of method notes §11 (a copy of the list, not the paper)', () => {
+    expect([...NORMALIZED_ELASTANCE_COEFFICIENTS]).toEqual(METHOD_NOTES_COEFFICIENTS);
   });
 
-  it('tNd 0.23684 → 0.33614 (worked example of the method notes, computed from the recalled coefficients)', () => {
+  it('tNd 0.23684 → 0.33614 (worked example of the method notes, computed here from the quoted coefficients)', () => {
     expect(normalizedElastanceAverage(90 / 380).value).toBeCloseTo(0.33614, 5);
   });
 
@@ -51,13 +52,13 @@ describe('ENd(avg), the group-averaged normalized elastance (Chen 2001; coeffici
   });
 });
 
-describe('ENd(est) (Chen 2001; coefficients from memory)', () => {
+describe('ENd(est) (Chen 2001; coefficients as quoted by secondary implementations)', () => {
   it('EF 0.60, DBP 80, Pes 108, ENd(avg) 0.33614 → 0.37243 (worked example of the method notes)', () => {
     const byHand = 0.0275 - 0.165 * 0.6 + 0.3656 * (80 / 108) + 0.515 * 0.33614;
     expect(normalizedElastanceEstimate(0.6, 80, 108, 0.33614)).toBeCloseTo(byHand, 12);
     expect(normalizedElastanceEstimate(0.6, 80, 108, 0.33614)).toBeCloseTo(0.37243, 5);
   });
-  it('falls with EF and rises with DBP/Pes and ENd(avg) (signs of the recalled coefficients)', () => {
+  it('falls with EF and rises with DBP/Pes and ENd(avg) (signs of the quoted coefficients)', () => {
     const base = normalizedElastanceEstimate(0.6, 80, 108, 0.336);
     expect(normalizedElastanceEstimate(0.3, 80, 108, 0.336)).toBeGreaterThan(base);
     expect(normalizedElastanceEstimate(0.6, 90, 108, 0.336)).toBeGreaterThan(base);

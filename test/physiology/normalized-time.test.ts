@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { normalizedEjectionOnset } from '../../src/physiology/normalized-time.js';
 
 describe('normalized time tNd = PEP / (PEP + ET)', () => {
-  it('PEP 90 ms, ET 290 ms → 0.23684 (definition from memory of Chen CH et al., JACC 2001; worked example in the method notes)', () => {
+  it('PEP 90 ms, ET 290 ms → 0.23684 (definition of Chen CH et al., JACC 2001, as quoted by secondary implementations; example computed here)', () => {
     expect(normalizedEjectionOnset(90, 290)).toBeCloseTo(90 / 380, 12);
     expect(normalizedEjectionOnset(90, 290)).toBeCloseTo(0.23684, 5);
   });

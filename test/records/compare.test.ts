@@ -106,13 +106,13 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     expect(part(pes, 'ea')).toBeCloseTo(Math.LN2, 10);
     expect(part(pes, 'strokeVolume')).toBeCloseTo(-Math.LN2, 10);
     expect(changeSentence(ea)).toMatch(/^Ea rose by 100 %: beyond the least significant change/);
-    expect(comparisonSummary(cc)[0]).toMatch(/^Beyond measurement noise \(the least significant change\): Ea/);
+    expect(comparisonSummary(cc)[0]).toMatch(/^Yardstick 1, the method's least significant change .*: beyond it: Ea/);
   });
 
   it('says plainly when every change is within measurement noise', () => {
     const lines = comparisonSummary(c);
-    expect(lines[0]).toMatch(/within measurement noise/);
-    expect(changeSentence(row(c, 'ees'))).toMatch(/^Ees rose by 10 %: within measurement noise/);
+    expect(lines[0]).toMatch(/every change \(.*\) is within it, so none is shown to be real/);
+    expect(changeSentence(row(c, 'ees'))).toMatch(/^Ees rose by 10 %: within the least significant change/);
   });
 
   it('leaves the heart-rate split not computable, with a reason, when a visit has no heart rate', () => {
@@ -152,13 +152,13 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     row(c2, 'ees').noise = { interval95: [-0.2, 0.5], exceeds: false, source: 'Monte Carlo, 20000 draws' };
     const file: SubjectFile = { format: 'elastimate-subject', schemaVersion: 1, subject: { id: 'HT-900' }, visits: [] };
     const text = renderComparison(file, { index: 1, date: '2024-01-01' }, { index: 2, date: '2024-04-01' }, c2);
-    expect(text).toMatch(/input uncertainty: 95 % interval of the change -0.200 to \+0.500 mmHg\/mL; includes no change: within the uncertainty of the inputs\. Source: Monte Carlo, 20000 draws/);
-    expect(comparisonSummary(c2).join(' ')).toMatch(/every change checked \(Ees\) is within noise too/);
+    expect(text).toMatch(/input uncertainty: the 95 % interval of the change, -0.200 to \+0.500 mmHg\/mL, includes zero: within the uncertainty of the inputs\. Source: Monte Carlo, 20000 draws/);
+    expect(comparisonSummary(c2).join(' ')).toMatch(/the 95 % interval of the change includes zero for every change \(Ees\)/);
     expect(text).toContain(METHODS_VERSION);
     expect(text).not.toMatch(/NaN|Infinity|undefined/);
   });
 
-  it('keeps the published repeatability in one place', () => {
+  it('keeps the published repeatability in one place (Chen 2001 abstract: CV 20.3 %; 1.96·√2 × 0.1 = 0.2772 for a CV of 10 %)', () => {
     expect(REPEATABILITY.eesCv).toBe(0.203);
     expect(leastSignificantChange(0.1, 'x').logLimit).toBeCloseTo(0.277, 10);
   });

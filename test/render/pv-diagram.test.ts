@@ -46,7 +46,7 @@ describe('estimated pressure–volume diagram (SVG, parsed with @xmldom/xmldom)'
     expect(p[0] - p[1] / slope).toBeCloseTo(r.v0.value!, 0);
   });
 
-  it('the diastolic curve passes through (EDV, EDP) and through 30 mmHg at V30 (Klotz 2006, from memory)', () => {
+  it('the diastolic curve passes through (EDV, EDP) and through 30 mmHg at V30 (Klotz 2006 and Nat Protoc 2007, as quoted by a secondary implementation)', () => {
     const [curve] = series(doc, 0, 'edpvr');
     const pts = points(curve!).map(toData);
     const atEdv = pts.find(([v]) => Math.abs(v - 118) < 0.05);

@@ -119,3 +119,40 @@ describe('case-conference report, Markdown with SVG files beside it', async () =
     expect(markdown).not.toMatch(/\b(NaN|Infinity|undefined)\b/);
   });
 });
+
+describe('trend charts judge each visit as record compare does (issue 9: one rule, one function)', async () => {
+  // Visit 1: SBP 100, SV 120 − 60 = 60 mL. Visit 2: SBP 180, SV 137 − 60 = 77 mL (hand-worked below).
+  // Δln Ea = ln(0.9·180/77 ÷ 0.9·100/60) = ln(162/90) − ln(77/60) = 0.58779 − 0.24946 = 0.33833.
+  // record compare 1 2 uses the mean SBP of the two visits: CV(Ea) = √((8/140)² + 0.10²) = 0.11517,
+  // limit 2.77 × 0.11517 = 0.31904 → beyond noise. A band taken from visit 1 alone, √((8/100)² + 0.10²) × 2.77
+  // = 0.35473, would have called the same change within noise: the contradiction this guards against.
+  // (Cuff SD 8 mmHg: ISO 81060-2 pass limit; stroke-volume CV 10 %, from memory; 2.77 = 1.96·√2, Bland–Altman.)
+  const subject = SubjectFileSchema.parse({
+    format: 'elastimate-subject',
+    schemaVersion: 1,
+    subject: { id: 'VR-001' },
+    visits: [
+      { date: '2024-01-10', inputs: { sbp: 100, dbp: 60, hr: 70, edv: 120, esv: 60, pep: 90, et: 290 } },
+      { date: '2024-04-10', inputs: { sbp: 180, dbp: 100, hr: 70, edv: 137, esv: 60, pep: 90, et: 290 } },
+    ],
+  });
+  const model = await buildReportModel(subject, { ...options, draws: 1000 });
+  const doc = parseHtml(renderReportHtml(model));
+  const ea = byClass(doc, 'svg', 'trend-chart').find((s) => s.getAttribute('data-key') === 'ea')!;
+
+  it('a change between the first visit\'s limit and the pair\'s limit is beyond noise in the chart, as in record compare', () => {
+    const row = compareVisits(model.visits[0]!.assessment, model.visits[1]!.assessment).rows.find((r) => r.key === 'ea')!;
+    expect(row.logChange).toBeCloseTo(0.33833, 4);
+    expect(row.lsc.logLimit).toBeCloseTo(0.31904, 4);
+    expect(row.verdict).toBe('beyond-noise');
+    const marker = byClass(ea, 'circle', 'point').find((c) => c.getAttribute('data-visit') === '2')!;
+    expect(marker.getAttribute('data-verdict')).toBe('beyond-noise');
+    expect(marker.getAttribute('fill')).not.toBe('#ffffff');
+    // The band is drawn through that visit's own limit, so the marker lies outside it.
+    const edge = byClass(ea, 'g', 'band-edge').find((g) => g.getAttribute('data-visit') === '2')!;
+    expect(Number(edge.getAttribute('data-high'))).toBeCloseTo(model.visits[0]!.assessment.results.ea.value! * Math.exp(0.31904), 4);
+    expect(Number(marker.getAttribute('data-value'))).toBeGreaterThan(Number(edge.getAttribute('data-high')));
+    const baseline = byClass(ea, 'circle', 'point').find((c) => c.getAttribute('data-visit') === '1')!;
+    expect(baseline.getAttribute('data-verdict')).toBe('within-noise');
+  });
+});

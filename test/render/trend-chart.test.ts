@@ -12,12 +12,12 @@ const SPEC: TrendChartSpec = {
   unit: 'mmHg/mL',
   decimals: 2,
   selectedIndex: 3,
-  lsc: { logLimit: L, source: 'Chen 2001, CV 20.3 %' },
+  bandSource: 'Chen 2001, CV 20.3 %',
   points: [
-    { index: 1, date: '2024-01-15', value: 1.5, interval95: [1.1, 1.95] },
-    { index: 2, date: '2024-04-15', value: 0.8, interval95: [0.55, 1.1] },
-    { index: 3, date: '2024-07-15', value: 1.2 },
-    { index: 4, date: '2024-10-15', value: null, reason: 'tNd outside the validity window' },
+    { index: 1, date: '2024-01-15', value: 1.5, interval95: [1.1, 1.95], logLimit: L },
+    { index: 2, date: '2024-04-15', value: 0.8, interval95: [0.55, 1.1], logLimit: L },
+    { index: 3, date: '2024-07-15', value: 1.2, logLimit: L },
+    { index: 4, date: '2024-10-15', value: null, reason: 'tNd outside the validity window', logLimit: L },
   ],
 };
 
@@ -28,20 +28,20 @@ describe('trend chart with the least-significant-change band (SVG, parsed with @
 
   it('the band spans baseline·e^−L to baseline·e^+L around the first visit', () => {
     const band = elements(doc, 'g').find((g) => g.getAttribute('class') === 'lsc-band')!;
-    const rect = elements(band, 'rect')[0]!;
-    const top = y.invert(num(rect, 'y'));
-    const bottom = y.invert(num(rect, 'y') + num(rect, 'height'));
-    expect(top).toBeCloseTo(1.5 * Math.exp(L), 2);
-    expect(bottom).toBeCloseTo(1.5 * Math.exp(-L), 2);
+    // The polygon's vertices: the upper edge left to right, then the lower edge back.
+    const vertices = band.getElementsByTagName('polygon')[0]!.getAttribute('points')!.trim().split(/\s+/).map((p) => Number(p.split(',')[1]));
+    expect(vertices).toHaveLength(8);
+    for (const v of vertices.slice(0, 4)) expect(y.invert(v)).toBeCloseTo(1.5 * Math.exp(L), 2);
+    for (const v of vertices.slice(4)) expect(y.invert(v)).toBeCloseTo(1.5 * Math.exp(-L), 2);
   });
 
   it('marks visits beyond the band as filled and visits within as open (readable in greyscale)', () => {
     const pts = elements(doc, 'circle').filter((c) => c.getAttribute('class') === 'point');
     const byVisit = new Map(pts.map((c) => [c.getAttribute('data-visit'), c]));
     // ln(0.8/1.5) = −0.629: beyond 0.562. ln(1.2/1.5) = −0.223: within.
-    expect(byVisit.get('2')!.getAttribute('data-beyond')).toBe('true');
+    expect(byVisit.get('2')!.getAttribute('data-verdict')).toBe('beyond-noise');
     expect(byVisit.get('2')!.getAttribute('fill')).not.toBe('#ffffff');
-    expect(byVisit.get('3')!.getAttribute('data-beyond')).toBe('false');
+    expect(byVisit.get('3')!.getAttribute('data-verdict')).toBe('within-noise');
     expect(byVisit.get('3')!.getAttribute('fill')).toBe('#ffffff');
     for (const [visit, value] of [['1', 1.5], ['2', 0.8], ['3', 1.2]] as const) {
       expect(y.invert(num(byVisit.get(visit)!, 'cy'))).toBeCloseTo(value, 2);

@@ -114,4 +114,18 @@ describe.skipIf(SKIP)('the report in headless Chromium', () => {
       expect(readFileSync(pdf).toString('latin1')).toMatch(size);
     }
   }, 180_000);
+
+  it('the demo subject in cases/ also prints one page per sheet on Letter and on A4 (longer labels and notes must still fit)', async () => {
+    const subject = SubjectFileSchema.parse(JSON.parse(readFileSync(join(import.meta.dirname, '..', '..', 'cases', 'cardio-oncology.subject.json'), 'utf8')));
+    const page = renderReportHtml(await buildReportModel(subject, { generated: '2024-08-01', toolVersion: '0.0.0-test', draws: 2000, seed: 3 }));
+    const sheets = (page.match(/<section class="sheet"/g) ?? []).length;
+    for (const [name, css] of [['letter', ''], ['a4', '@page { size: A4; }']] as const) {
+      const path = join(work, `cases-${name}.html`);
+      writeFileSync(path, page.replace('</style>', `${css}</style>`));
+      const pdf = join(work, `cases-${name}.pdf`);
+      const run = await chromium(['--no-pdf-header-footer', `--print-to-pdf=${pdf}`, pathToFileURL(path).href]);
+      expect(existsSync(pdf), `no PDF; chromium exited ${run.code}: ${run.stderr.slice(-400)}`).toBe(true);
+      expect(pdfPageCount(pdf), `${name}: pages`).toBe(sheets);
+    }
+  }, 180_000);
 });

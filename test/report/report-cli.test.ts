@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { FORBIDDEN_WORDS, STACK_FRAME, requireBuild, runCli, type CliRun } from '../cli/fixtures/run-cli.js';
 import { allText, parseSvg } from '../render/svg-helpers.js';
+import { reportFormat } from '../../src/cli/report-command.js';
 
 const FIXTURE = join(import.meta.dirname, 'fixtures', 'HT-014.subject.json');
 const VISIT = ['--sbp', '150', '--dbp', '92', '--hr', '68', '--edv', '118', '--esv', '46', '--pep', '95', '--et', '285', '--edp', '14', '--no-input'];
@@ -64,6 +65,12 @@ describe('elastimate report', () => {
     expect(readFileSync(path, 'utf8')).toContain('Visit reported: <strong>Visit 2 · 2024-04-15</strong>; compared with Visit 1 · 2024-01-15');
   });
 
+  it('an --out name ending in .markdown chooses Markdown, as .md does', () => {
+    expect(reportFormat({ out: 'case.markdown' })).toBe('md');
+    expect(reportFormat({ out: 'case.MD' })).toBe('md');
+    expect(reportFormat({ out: 'case.htm' })).toBe('html');
+  });
+
   it('--format md writes Markdown with the four SVG files beside it, each well-formed', async () => {
     const out = join(dir, 'md');
     mkdirSync(out);
@@ -78,7 +85,11 @@ describe('elastimate report', () => {
   it('refuses bad paths and options with exit 2, naming the option, and never touches the subject file', async () => {
     const before = readFileSync(FIXTURE);
     expectRefusal(await runCli(['report', FIXTURE, '--out', join(dir, 'no-such-folder', 'r.html')]), '--out');
-    expectRefusal(await runCli(['report', FIXTURE, '--out', join(dir, 'r.pdf')]), '--out');
+    const pdf = await runCli(['report', FIXTURE, '--out', join(dir, 'r.pdf')]);
+    expectRefusal(pdf, '--out');
+    // Without --format the name chooses the format, so the refusal lists the endings of both.
+    expect(pdf.stderr).toMatch(/wrong file type; accepted: a file path ending in \.html or \.htm or \.md or \.markdown\b/);
+    expect((await runCli(['report', FIXTURE, '--out', join(dir, 'r.md'), '--format', 'html'])).stderr).toMatch(/accepted: a file path ending in \.html or \.htm,/);
     expectRefusal(await runCli(['report', FIXTURE, '--out', dir + '/']), '--out');
     expectRefusal(await runCli(['report', FIXTURE]), '--out');
     expectRefusal(await runCli(['report', FIXTURE, '--out', join(dir, 'r.html'), '--format', 'pdf']), '--format');

@@ -10,7 +10,7 @@ import { defineNodes } from '../types.js';
 export const ELASTANCE_NODES = defineNodes([
   { key: 'ea', unit: 'mmHg/mL', rules: [{ from: ['pes', 'svUsed'], compute: arterialElastance, method: 'Pes / SV', source: 'Sunagawa 1983; Kelly 1992' }] },
   { key: 'eaIndexed', unit: 'mmHg·m²/mL', rules: [{ from: ['ea', 'bsa'], compute: indexedToBodySurface, method: 'Ea × BSA (Pes / SV index)' }] },
-  { key: 'eaResistance', unit: 'mmHg/mL', rules: [{ from: ['tpr', 'hr'], compute: arterialElastanceFromResistance, method: 'TPR × HR / 60 (resistance view)' }] },
+  { key: 'eaResistance', unit: 'mmHg/mL', rules: [{ from: ['tpr', 'hr'], compute: arterialElastanceFromResistance, method: 'TPR × HR/60 (R/T estimate; Kelly 1992)' }] },
   { key: 'tNd', unit: '', rules: [{ from: ['pep', 'et'], compute: normalizedEjectionOnset, method: 'PEP / (PEP + ET)', source: 'Chen 2001' }] },
   {
     key: 'normalizedElastanceAvg',
@@ -40,8 +40,8 @@ export const ELASTANCE_NODES = defineNodes([
   {
     key: 'eaEesFromEf',
     unit: '',
-    rules: [{ from: ['efUsed'], compute: (ef: number) => couplingRatioFromEjectionFraction(ef / 100), method: '1/EF − 1 (V0 = 0 identity; cross-check only)' }],
+    rules: [{ from: ['efUsed'], compute: (ef: number) => couplingRatioFromEjectionFraction(ef / 100), method: '1/EF − 1 (V0(ES) = 0 identity; cross-check only)' }],
   },
   { key: 'v0', unit: 'mL', rules: [{ from: ['esv', 'pes', 'ees'], compute: volumeIntercept, method: 'ESV − Pes / Ees' }] },
-  { key: 'eesNoIntercept', unit: 'mmHg/mL', rules: [{ from: ['pes', 'esv'], compute: endSystolicElastanceNoIntercept, method: 'Pes / ESV (crude: assumes V0 = 0)' }] },
+  { key: 'eesNoIntercept', unit: 'mmHg/mL', rules: [{ from: ['pes', 'esv'], compute: endSystolicElastanceNoIntercept, method: 'Pes / ESV (crude: assumes V0(ES) = 0)' }] },
 ]);

@@ -9,7 +9,7 @@ export const PRESSURE_NODES = defineNodes([
     key: 'pes',
     unit: 'mmHg',
     rules: [
-      { when: { pesMethod: 'sbp90' }, from: ['sbp'], compute: endSystolicPressureFromSystolic, method: '0.9 × brachial SBP', source: 'Kelly 1992' },
+      { when: { pesMethod: 'sbp90' }, from: ['sbp'], compute: endSystolicPressureFromSystolic, method: '0.9 × brachial SBP', source: 'factor as stated in Chen 2001' },
       { when: { pesMethod: 'weighted' }, from: ['sbp', 'dbp'], compute: endSystolicPressureWeighted, method: '(2·SBP + DBP)/3', source: 'literature estimate, source unverified' },
       { when: { pesMethod: 'measured' }, from: ['pesMeasured'], compute: passThrough, method: 'measured value, passed through' },
     ],
