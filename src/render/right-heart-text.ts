@@ -59,9 +59,9 @@ export function rightHeartRows(a: Assessment): RightHeartRow[] {
   if (index !== null) {
     for (const c of TAPSE_PASP_CUT_OFFS) {
       rows.push({
-        label: `  cut-off ${c.below}`,
-        value: index < c.below ? 'below' : 'at or above',
-        note: `${c.population}: below it, ${c.finding} (${c.source})`,
+        label: `  cut-off ${c.below} mm/mmHg`,
+        value: index < c.below ? 'below it' : 'not below it',
+        note: `in ${c.population}, values below it marked ${c.finding} (${c.source})`,
       });
     }
   }

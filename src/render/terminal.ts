@@ -97,7 +97,16 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   const rightHeart = rightHeartRows(a);
   if (rightHeart.length) {
     section('Right heart: RV–pulmonary artery coupling');
-    for (const row of rightHeart) out.push(`  ${pad(row.label, LABEL_WIDTH)}${row.value === '—' ? s.dim(row.value) : s.strong(row.value)}${row.note ? s.dim('  ' + row.note) : ''}`);
+    for (const row of rightHeart) {
+      const head = `  ${pad(row.label, LABEL_WIDTH)}`;
+      const value = row.value === '—' ? s.dim(row.value) : s.strong(row.value);
+      // The note follows the value when it fits the screen, else it wraps on the lines below.
+      // The note follows the value, wrapped to the screen under the value's column.
+      // (a run of non-spaces as long as the value and one space holds the value's place while wrapping)
+      const holder = 'x'.repeat([...row.value].length + 1);
+      const [first = '', ...rest] = row.note ? wrap(`${holder} ${row.note}`, Math.max(20, s.width - head.length)) : [holder];
+      out.push(`${head}${value}${s.dim(' ' + first.slice(holder.length))}`.trimEnd(), ...rest.map((l) => s.dim(' '.repeat(head.length) + l)));
+    }
   }
 
   if (options.recheck) {
