@@ -31,6 +31,13 @@ export function referralNote(inputs: VisitInputs, r: Results, flags: readonly Fl
       `estimated end-systolic pressure ${fmt(r.pes.value, 0, 'mmHg')}, arterial elastance (Ea) ${fmt(r.ea.value, 2, 'mmHg/mL')}, ` +
       `single-beat end-systolic elastance (Ees) ${fmt(r.ees.value, 2, 'mmHg/mL')} and Ea/Ees ${fmt(r.eaEes.value, 2)}.`,
   );
+  if (r.pasp.value !== null) {
+    const rap = inputs.rap !== null ? 'measured' : 'estimated from the IVC';
+    parts.push(
+      `On the right side, PASP is ${fmt(r.pasp.value, 0, 'mmHg')} (right-atrial pressure ${fmt(r.rapUsed.value, 0, 'mmHg')}, ${rap})` +
+        `${r.tapsePasp.value !== null ? ` and TAPSE/PASP ${fmt(r.tapsePasp.value, 2, 'mm/mmHg')}` : ''}.`,
+    );
+  }
   const attention = flags.filter((f) => f.level === 'attention');
   if (attention.length) {
     parts.push('Findings that may warrant clinical attention under common thresholds: ' + attention.map((f) => f.message.replace(/\.$/, '')).join('; ') + '.');

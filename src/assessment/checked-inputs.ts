@@ -109,6 +109,12 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
     const field = lvotDiameter === null ? 'lvot-diameter' : 'lvot-vti';
     problems.push({ field, value: '', reason: 'Doppler stroke volume needs both LVOT diameter and VTI', accepted: 'both lvot-diameter and lvot-vti, or neither' });
   }
+  const ivc = one(FIELD_INDEX.ivc);
+  const ivcCollapse = one(FIELD_INDEX.ivcCollapse);
+  if ((ivc === null) !== (ivcCollapse === null) && problems.length === 0) {
+    const field = ivc === null ? 'ivc' : 'ivc-collapse';
+    problems.push({ field, value: '', reason: 'estimated right-atrial pressure needs both the IVC diameter and its collapse', accepted: 'both ivc and ivc-collapse, or neither' });
+  }
   const pesMeasured = one(FIELD_INDEX.pesMeasured);
   const pesMethod: PesMethod = raw.pesMethod ?? (pesMeasured !== null ? 'measured' : 'sbp90');
   if (pesMethod === 'measured' && pesMeasured === null && !isAbsent(raw.pesMethod)) {
@@ -138,6 +144,11 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
     eOverEPrime: one(FIELD_INDEX.eOverEPrime),
     lvids: one(FIELD_INDEX.lvids),
     pwts: one(FIELD_INDEX.pwts),
+    tapse: one(FIELD_INDEX.tapse),
+    trVelocity: one(FIELD_INDEX.trVelocity),
+    rap: one(FIELD_INDEX.rap),
+    ivc,
+    ivcCollapse,
     rhythm: raw.rhythm ?? 'sinus',
     aorticStenosis: raw.aorticStenosis ?? false,
     aorticRegurgitation: raw.aorticRegurgitation ?? false,

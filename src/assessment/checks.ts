@@ -4,6 +4,8 @@
  */
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 import { TND_TYPICAL } from '../physiology/normalized-elastance.js';
+import { TAPSE_PASP_CUT_OFFS, TR_VELOCITY_SUSPICION_ABOVE } from '../physiology/right-ventricular-coupling.js';
+import { rightAtrialPressureFromVenaCava } from '../physiology/right-atrial-pressure.js';
 import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
 import { RHYTHM_WORDS } from './labels.js';
@@ -89,6 +91,19 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
     add('coupling', 'note', m ? `Ea/Ees ${r.eaEes.value.toFixed(2)} is above ${COUPLING_CUTOFF}, the cut-off taken as abnormal coupling in a heart-failure echo study.` : '');
   }
 
+  // Right heart: what the TR-derived numbers can and cannot say (common practice; Rudski 2010).
+  const rightHeartGiven = inputs.tapse !== null || inputs.trVelocity !== null || inputs.rap !== null || inputs.ivc !== null;
+  if (rightHeartGiven && inputs.trVelocity === null) {
+    add('no-tr-jet', 'note', m ? 'No tricuspid regurgitant velocity given: without a measurable TR jet there is no PASP and no TAPSE/PASP index.' : '');
+  }
+  if (r.pasp.value !== null) {
+    add('pasp-limits', 'note', m ? 'PASP from the TR jet is underestimated in severe tricuspid regurgitation, and differs from right ventricular systolic pressure with pulmonary stenosis or right ventricular outflow obstruction.' : '');
+  }
+  if (inputs.rap === null && inputs.ivc !== null && inputs.ivcCollapse !== null && r.rapUsed.value !== null) {
+    const band = rightAtrialPressureFromVenaCava(inputs.ivc, inputs.ivcCollapse).band;
+    add('rap-estimated', 'note', m ? `Right-atrial pressure ${r.rapUsed.value.toFixed(0)} mmHg is estimated from the IVC (${inputs.ivc.toFixed(1)} cm, ${inputs.ivcCollapse.toFixed(0)} % collapse with a sniff: the ${band} band of Rudski 2010); the estimate does not hold in ventilated subjects.` : '');
+  }
+
   // Findings that warrant clinical attention under common thresholds.
   const efLimit = THRESHOLDS.efLowerNormal[inputs.sex ?? 'unknown'];
   if (r.efUsed.value !== null && r.efUsed.value < efLimit) {
@@ -102,6 +117,13 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
   }
   if (inputs.hr !== null && inputs.hr > THRESHOLDS.tachycardia) {
     add('tachycardia', 'attention', m ? `Heart rate ${inputs.hr.toFixed(0)} bpm is above ${THRESHOLDS.tachycardia} bpm (tachycardia).` : '');
+  }
+  if (inputs.trVelocity !== null && inputs.trVelocity > TR_VELOCITY_SUSPICION_ABOVE) {
+    add('tr-velocity-high', 'attention', m ? `Peak tricuspid regurgitant velocity ${inputs.trVelocity.toFixed(1)} m/s is above ${TR_VELOCITY_SUSPICION_ABOVE} m/s, the echo threshold for suspecting pulmonary hypertension in adults (ESC/ERS 2022 guideline).` : '');
+  }
+  const uncoupled = TAPSE_PASP_CUT_OFFS[0]!;
+  if (r.tapsePasp.value !== null && r.tapsePasp.value < uncoupled.below) {
+    add('tapse-pasp-low', 'attention', m ? `TAPSE/PASP ${r.tapsePasp.value.toFixed(2)} mm/mmHg is below ${uncoupled.below} mm/mmHg, which marked right ventricle–pulmonary artery uncoupling in ${uncoupled.population} (${uncoupled.source}).` : '');
   }
   return flags;
 }

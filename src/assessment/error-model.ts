@@ -98,6 +98,20 @@ export const DEFAULT_ERRORS: Record<ErrorInputKey, DefaultError> = {
   },
   height: { kind: 'absolute', value: 1, provenance: 'from memory', source: 'measured height, about ±1 cm (from memory)' },
   weight: { kind: 'absolute', value: 1, provenance: 'from memory', source: 'measured weight, about ±1 kg (from memory)' },
+  tapse: {
+    kind: 'relative', value: 0.053, provenance: 'literature',
+    source: 'inter-observer variability of resting TAPSE 5.3 % across 19 laboratories (Ferrara F et al., RIGHT-NET, Cardiovasc Ultrasound 2021;19:9); a reading variability, so a lower bound on visit-to-visit error',
+  },
+  trVelocity: {
+    kind: 'relative', value: 0.038, provenance: 'literature',
+    source: 'inter-observer variability of resting peak TR velocity 3.8 % across 19 laboratories (Ferrara F et al., RIGHT-NET, Cardiovasc Ultrasound 2021;19:9); a reading variability, so a lower bound on visit-to-visit error',
+  },
+  rap: { kind: 'absolute', value: 2, provenance: 'from memory', source: 'a right-atrial pressure measured at catheterisation, about ±2 mmHg (assumed, from memory)' },
+  ivc: {
+    kind: 'absolute', value: 0.2, provenance: 'from memory',
+    source: 'IVC diameter, about ±2 mm (assumed, from memory); a draw that crosses 2.1 cm moves the estimated RAP to another band, which is how the estimate\'s coarseness enters the spread',
+  },
+  ivcCollapse: { kind: 'absolute', value: 10, provenance: 'from memory', source: 'IVC collapse with a sniff, about ±10 points (assumed, from memory)' },
 };
 
 /** One input's error as used in a Monte Carlo run. */

@@ -24,7 +24,8 @@ export interface NumericField {
 export type NumericKey =
   | 'sbp' | 'dbp' | 'hr' | 'edv' | 'esv' | 'ef' | 'sv' | 'lvotDiameter' | 'lvotVti'
   | 'pep' | 'et' | 'height' | 'weight' | 'age' | 'pesMeasured'
-  | 'edp' | 'eOverEPrime' | 'lvids' | 'pwts';
+  | 'edp' | 'eOverEPrime' | 'lvids' | 'pwts'
+  | 'tapse' | 'trVelocity' | 'rap' | 'ivc' | 'ivcCollapse';
 
 export const NUMERIC_FIELDS: readonly NumericField[] = [
   { key: 'sbp', flag: 'sbp', label: 'Brachial systolic pressure', kind: 'pressure', unit: 'mmHg', min: 60, max: 260, required: true, multiple: true, help: 'cuff SBP; several readings are averaged' },
@@ -46,6 +47,12 @@ export const NUMERIC_FIELDS: readonly NumericField[] = [
   { key: 'eOverEPrime', flag: 'e-over-e-prime', label: 'E/e′ ratio', kind: 'ratio', unit: '', min: 3, max: 40, required: false, help: 'E/e′ with lateral e′ (as Nagueh 1997 derived it), for estimated filling pressure' },
   { key: 'lvids', flag: 'lvids', label: 'LV end-systolic dimension LVIDs', kind: 'length', unit: 'cm', min: 1.5, max: 8, required: false, help: 'for wall stress' },
   { key: 'pwts', flag: 'pwts', label: 'Posterior wall at end-systole', kind: 'length', unit: 'cm', min: 0.5, max: 3, required: false, help: 'for wall stress' },
+  // Right heart (Rudski 2010 guideline measurements), for TAPSE/PASP.
+  { key: 'tapse', flag: 'tapse', label: 'TAPSE', kind: 'excursion', unit: 'mm', min: 3, max: 40, required: false, help: 'tricuspid annular plane systolic excursion, M-mode' },
+  { key: 'trVelocity', flag: 'tr-velocity', label: 'Peak tricuspid regurgitant velocity', kind: 'velocity', unit: 'm/s', min: 0.5, max: 7, required: false, help: 'continuous-wave Doppler; leave out when no TR jet is measurable' },
+  { key: 'rap', flag: 'rap', label: 'Right-atrial pressure', kind: 'pressure', unit: 'mmHg', min: 0, max: 40, required: false, help: 'measured; or give IVC diameter and collapse for an estimate' },
+  { key: 'ivc', flag: 'ivc', label: 'Inferior vena cava diameter', kind: 'length', unit: 'cm', min: 0.3, max: 4.5, required: false, help: 'subcostal, near the right atrium, for estimated RAP' },
+  { key: 'ivcCollapse', flag: 'ivc-collapse', label: 'IVC collapse with a sniff', kind: 'percent', unit: '%', min: 0, max: 100, required: false, help: 'percent fall in diameter with a sniff, for estimated RAP' },
 ];
 
 export const RHYTHMS = ['sinus', 'atrial-fibrillation', 'other'] as const;

@@ -65,6 +65,11 @@ export interface VisitInputs {
   eOverEPrime: number | null;
   lvids: number | null;
   pwts: number | null;
+  tapse: number | null;
+  trVelocity: number | null;
+  rap: number | null;
+  ivc: number | null;
+  ivcCollapse: number | null;
   rhythm: Rhythm;
   aorticStenosis: boolean;
   aorticRegurgitation: boolean;

@@ -14,7 +14,8 @@ import type { Flag } from './result.js';
 export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
   sbp: 'SBP', dbp: 'DBP', hr: 'heart rate', edv: 'EDV', esv: 'ESV', ef: 'reported EF', sv: 'Doppler SV',
   lvotDiameter: 'LVOT diameter', lvotVti: 'LVOT VTI', pep: 'PEP', et: 'ET', pesMeasured: 'measured Pes',
-  height: 'height', weight: 'weight',
+  height: 'height', weight: 'weight', tapse: 'TAPSE', trVelocity: 'TR velocity', rap: 'right-atrial pressure',
+  ivc: 'IVC diameter', ivcCollapse: 'IVC collapse',
 };
 
 export const RHYTHM_WORDS: Record<Rhythm, string> = {
@@ -55,6 +56,11 @@ export const FLAG_WORDS: Record<string, string> = {
   'bp-severe': 'severely elevated blood pressure',
   bradycardia: 'marked bradycardia',
   tachycardia: 'tachycardia',
+  'no-tr-jet': 'no measurable tricuspid regurgitant jet',
+  'pasp-limits': 'limits of PASP from the TR jet',
+  'rap-estimated': 'right-atrial pressure estimated from the IVC',
+  'tr-velocity-high': 'TR velocity above 2.8 m/s',
+  'tapse-pasp-low': 'TAPSE/PASP below 0.31 mm/mmHg',
 };
 
 /** The plain words for one flag; the rhythm flag names the rhythm itself when it is known. */

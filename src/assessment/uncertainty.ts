@@ -38,7 +38,7 @@ export const DRAWS_RANGE = { min: 1_000, max: 500_000 } as const;
 export const SEED_RANGE = { min: 0, max: 4_294_967_295 } as const;
 /** Draws per input for the one-at-a-time sensitivity runs (at most the main run's count). */
 export const SENSITIVITY_DRAWS = 5_000;
-export const SENSITIVITY_KEYS = ['ea', 'ees', 'eaEes', 'v0'] as const;
+export const SENSITIVITY_KEYS = ['ea', 'ees', 'eaEes', 'v0', 'tapsePasp'] as const;
 export type SensitivityKey = (typeof SENSITIVITY_KEYS)[number];
 
 /** Chen CH et al., J Am Coll Cardiol 2001;38:2028–2034, abstract: invasive vs single-beat Ees. */
@@ -429,7 +429,7 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
 
   const methodError = methodErrorReport(method?.calibrated ?? null, sim, scratch);
 
-  const sensitivity: Record<SensitivityKey, Share[]> = { ea: [], ees: [], eaEes: [], v0: [] };
+  const sensitivity: Record<SensitivityKey, Share[]> = { ea: [], ees: [], eaEes: [], v0: [], tapsePasp: [] };
   const additivity: Partial<Record<SensitivityKey, number>> = {};
   const drawsPerInput = Math.min(draws, SENSITIVITY_DRAWS);
   if (options.sensitivity !== false) {

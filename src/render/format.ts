@@ -8,7 +8,7 @@ import type { Quantity } from '../assessment/result.js';
 const DECIMALS: Record<string, number> = {
   mmHg: 0, mL: 0, '%': 0, bpm: 0, ms: 0, 'L/min': 2, 'L/min/m²': 2, 'm²': 2, WU: 1, 'dyn·s·cm⁻⁵': 0,
   'mL/mmHg': 2, 'mmHg/mL': 2, 'mmHg·m²/mL': 2, '': 3, cm: 1, kg: 0, years: 0, J: 3, 'mmHg·mL': 0,
-  '10³ dyn/cm²': 0, 'kdyn/cm²': 0,
+  '10³ dyn/cm²': 0, 'kdyn/cm²': 0, mm: 0, 'm/s': 2, 'mm/mmHg': 2,
 };
 
 export function decimalsFor(unit: string): number {

@@ -14,6 +14,7 @@ import type { SubjectInfo } from '../records/subject-schema.js';
 import { sourceForReaders, CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
 import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
+import { rightHeartRows } from './right-heart-text.js';
 import { comparisonSummary, judgementWords } from './series.js';
 import { renderTrendChart, type TrendChartSpec } from './trend-chart.js';
 
@@ -227,6 +228,7 @@ export function mechanicsRows(a: Assessment): { group: string; label: string; va
       ? `${c.anchorPressure} mmHg at ${formatNumber(c.anchorVolume, 0)} mL; ${V0_DIASTOLIC} ${formatNumber(c.unstressedVolume, 0)} mL; ${c.anchorPressure === 15 ? 'EDP > 22 mmHg: anchored at 15 mmHg (Klotz protocol)' : 'single-beat, from one point'}`
       : `not drawn: ${m.diastolic.reason ?? 'not computable'}`,
   });
+  for (const r of rightHeartRows(a)) rows.push({ group: 'Right heart', label: r.label.trim(), value: r.value, note: r.note });
   return rows;
 }
 

@@ -7,6 +7,7 @@ import { fieldByKey, type NumericKey } from '../assessment/fields.js';
 import type { Quantity } from '../assessment/result.js';
 import { formatNumber, formatQuantity, formatValue, pad, padLeft } from './format.js';
 import { mechanicsSections } from './mechanics-text.js';
+import { rightHeartRows } from './right-heart-text.js';
 import { plainStyle, type Style } from './style.js';
 import {
   EA_RT_LABEL, END_AVG_LABEL, END_EST_LABEL, END_NOTE, PES_METHOD_WORDS, RHYTHM_WORDS, STROKE_VOLUME_SOURCE_WORDS, V0_END_SYSTOLIC, couplingNote,
@@ -93,6 +94,21 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('Ea/Ees', r.eaEes, coupling ? (r.eaEes.value! > COUPLING_CUTOFF ? s.caution(coupling) : s.dim(coupling)) : undefined);
   line('  cross-check 1/EF − 1', r.eaEesFromEf);
 
+  const rightHeart = rightHeartRows(a);
+  if (rightHeart.length) {
+    section('Right heart: RV–pulmonary artery coupling');
+    for (const row of rightHeart) {
+      const head = `  ${pad(row.label, LABEL_WIDTH)}`;
+      const value = row.value === '—' ? s.dim(row.value) : s.strong(row.value);
+      // The note follows the value when it fits the screen, else it wraps on the lines below.
+      // The note follows the value, wrapped to the screen under the value's column.
+      // (a run of non-spaces as long as the value and one space holds the value's place while wrapping)
+      const holder = 'x'.repeat([...row.value].length + 1);
+      const [first = '', ...rest] = row.note ? wrap(`${holder} ${row.note}`, Math.max(20, s.width - head.length)) : [holder];
+      out.push(`${head}${value}${s.dim(' ' + first.slice(holder.length))}`.trimEnd(), ...rest.map((l) => s.dim(' '.repeat(head.length) + l)));
+    }
+  }
+
   if (options.recheck) {
     section('Recheck: the same subject under each method variant');
     out.push(...renderVariants(a, s));
@@ -150,7 +166,7 @@ function inputRows(a: Assessment, sources: Readonly<Record<string, string>> = {}
   const readings = (list: number[]) => (list.length > 1 ? `mean of ${list.length} readings: ${list.map((x) => formatNumber(x, 0)).join(', ')}` : 'one reading');
   numeric('sbp', readings(i.sbpReadings));
   numeric('dbp', readings(i.dbpReadings));
-  for (const k of ['hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'height', 'weight', 'age', 'pesMeasured', 'edp', 'eOverEPrime', 'lvids', 'pwts'] as NumericKey[]) numeric(k);
+  for (const k of ['hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'height', 'weight', 'age', 'pesMeasured', 'edp', 'eOverEPrime', 'lvids', 'pwts', 'tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse'] as NumericKey[]) numeric(k);
   rows.push({ label: 'Rhythm', value: RHYTHM_WORDS[i.rhythm], source: sources.rhythm ?? '' });
   const valves = [
     i.aorticStenosis && 'aortic stenosis',

@@ -25,6 +25,8 @@ const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'ees', label: 'Ees' },
   { key: 'eaEes', label: 'Ea/Ees' },
   { key: 'v0', label: 'V0(ES)' },
+  { key: 'pasp', label: 'PASP' },
+  { key: 'tapsePasp', label: 'TAPSE/PASP' },
 ];
 
 /** A probability or fraction as a percentage: one decimal near 0 % and 100 %, none between; never rounded to 0 or 100 when it is not. */
@@ -104,6 +106,7 @@ export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: 
   lines.push(`  ${pad('Ees', 8)}${shareList(report.sensitivity.ees)}`);
   lines.push(`  ${pad('Ea/Ees', 8)}${shareList(report.sensitivity.eaEes)}`);
   lines.push(`  ${pad('Ea', 8)}${shareList(report.sensitivity.ea)}`);
+  if (report.sensitivity.tapsePasp.length) lines.push(`  ${pad('TAPSE/PASP', 8)}  ${shareList(report.sensitivity.tapsePasp)}`);
   prose(driverAdvice(report), s.strong);
   prose('Error model (SD of each input as used; override with --error input=value or "errors" in a visit file):', s.strong);
   for (const spec of report.errorModel) {

@@ -8,7 +8,7 @@ import { InputError, showValue } from '../errors.js';
 import { commonUnitFactor } from './common-units.js';
 import { loadMathjs } from './mathjs-loader.js';
 
-export type QuantityKind = 'pressure' | 'volume' | 'time' | 'rate' | 'percent' | 'length' | 'mass' | 'ratio';
+export type QuantityKind = 'pressure' | 'volume' | 'time' | 'rate' | 'percent' | 'length' | 'excursion' | 'velocity' | 'mass' | 'ratio';
 
 interface KindInfo {
   /** Internal unit, as mathjs spells it (or our own for rate and percent). */
@@ -24,6 +24,9 @@ export const KINDS: Record<QuantityKind, KindInfo> = {
   rate: { unit: 'bpm', examples: 'bpm (default), /min, Hz' },
   percent: { unit: '%', examples: '% (default)' },
   length: { unit: 'cm', examples: 'cm (default), mm, m, inch' },
+  // Annular excursion (TAPSE) is reported in millimetres.
+  excursion: { unit: 'mm', examples: 'mm (default), cm' },
+  velocity: { unit: 'm/s', examples: 'm/s (default), cm/s' },
   mass: { unit: 'kg', examples: 'kg (default), g, lb' },
   ratio: { unit: '', examples: 'a plain number' },
 };

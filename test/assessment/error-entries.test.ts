@@ -12,7 +12,7 @@ describe('checkRawShape: error entries', () => {
   it('refuses an entry "__proto__" (an own key after JSON.parse) naming it, with the accepted input names', () => {
     const raw = JSON.parse('{"sbp":130,"errors":{"__proto__":5,"sbp":6}}');
     expect(Object.keys(raw.errors)).toContain('__proto__');
-    expect(inputErrorMessage(() => checkRawShape(raw))).toBe('error: got "__proto__"; not an input whose error reaches a result; accepted: one of sbp, dbp, hr, edv, esv, ef, sv, lvot-diameter, lvot-vti, pep, et, pes-measured, height, weight');
+    expect(inputErrorMessage(() => checkRawShape(raw))).toBe('error: got "__proto__"; not an input whose error reaches a result; accepted: one of sbp, dbp, hr, edv, esv, ef, sv, lvot-diameter, lvot-vti, pep, et, pes-measured, height, weight, tapse, tr-velocity, rap, ivc, ivc-collapse');
   });
 
   it('keeps entries that name inputs', () => {

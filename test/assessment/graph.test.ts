@@ -5,6 +5,7 @@
  * published formulas (common practice), and against the edges themselves
  * (every input that reaches an output shows in that output's sensitivity split).
  */
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { ERROR_INPUT_KEYS, type ErrorInputKey } from '../../src/assessment/error-model.js';
 import { RESULT_KEYS, computeResults, visitPlan, type ResultKey } from '../../src/assessment/graph/index.js';
@@ -15,11 +16,31 @@ import { passThrough } from '../../src/assessment/graph/types.js';
 import { parseInputs, type VisitInputs } from '../../src/assessment/inputs.js';
 import { SENSITIVITY_KEYS, assessUncertainty } from '../../src/assessment/uncertainty.js';
 
+const math = createRequire(import.meta.url)('mathjs') as typeof import('mathjs');
+
 /** Invented visits (demo numbers): cuff pressures, volumes, timing, body size; one with LVOT Doppler, one with a measured Pes. */
 const BASE = { sbp: 150, dbp: 90, hr: 70, edv: 120, esv: 50, ef: 60, pep: 95, et: 285, height: 172, weight: 80 };
 const WITH_SV = { ...BASE, sv: 75 };
 const WITH_LVOT = { ...BASE, lvotDiameter: 2.1, lvotVti: 21 };
 const MEASURED_PES = { ...BASE, pesMeasured: 128, pesMethod: 'measured' };
+const RIGHT_HEART = { ...BASE, tapse: 18, trVelocity: 2.6, rap: 8 };
+/** IVC 2.0 cm (not dilated) collapsing 40 %: the intermediate band, 0.5 SD below the 2.1 cm edge. */
+const IVC_NEAR_DIAMETER_EDGE = { ...BASE, trVelocity: 2.6, ivc: 2.0, ivcCollapse: 40 };
+/** IVC 2.4 cm (dilated) collapsing 45 %: the high band, 0.5 SD below the 50 % edge. */
+const IVC_NEAR_COLLAPSE_EDGE = { ...BASE, trVelocity: 2.6, ivc: 2.4, ivcCollapse: 45 };
+
+/** Standard normal distribution function, from mathjs's erf (a reference library). */
+function normalCdf(z: number): number {
+  return 0.5 * (1 + math.erf(z / Math.SQRT2));
+}
+
+/**
+ * The SD of a quantity that takes value `low` or `high` (a band of a step rule) with the
+ * probability of crossing the edge: (high − low)·√(p(1 − p)), exact for a two-point variable.
+ */
+function twoPointSd(low: number, high: number, p: number): number {
+  return (high - low) * Math.sqrt(p * (1 - p));
+}
 
 /** The visit with only `input`'s error switched on (every other SD 0, an allowed override). */
 function onlyError(raw: Record<string, unknown>, input: ErrorInputKey): VisitInputs {
@@ -31,7 +52,9 @@ interface Linear {
   visit: Record<string, unknown>;
   output: ResultKey;
   /** d output / d input at the visit's values, from the published formula. */
-  slope: (x: VisitInputs) => number;
+  slope?: (x: VisitInputs) => number;
+  /** For a step rule (no slope): the exact SD of the output given the input's SD. */
+  exactSd?: (x: VisitInputs, sd: number) => number;
   why: string;
 }
 
@@ -51,6 +74,21 @@ const LINEAR: Record<ErrorInputKey, Linear> = {
   pesMeasured: { visit: MEASURED_PES, output: 'pes', slope: () => 1, why: 'a measured Pes is passed through' },
   height: { visit: BASE, output: 'bsa', slope: (x) => Math.sqrt((x.height! * x.weight!) / 3600) / (2 * x.height!), why: 'BSA = √(H·W/3600) (Mosteller 1987), d/dH = BSA/(2H)' },
   weight: { visit: BASE, output: 'bsa', slope: (x) => Math.sqrt((x.height! * x.weight!) / 3600) / (2 * x.weight!), why: 'BSA = √(H·W/3600), d/dW = BSA/(2W)' },
+  tapse: { visit: RIGHT_HEART, output: 'tapsePasp', slope: (x) => 1 / (4 * x.trVelocity! ** 2 + x.rap!), why: 'TAPSE/PASP (Guazzi 2013), d/dTAPSE = 1/PASP' },
+  trVelocity: { visit: RIGHT_HEART, output: 'pasp', slope: (x) => 8 * x.trVelocity!, why: 'PASP = 4·v² + RAP (simplified Bernoulli), d/dv = 8·v' },
+  rap: { visit: RIGHT_HEART, output: 'pasp', slope: () => 1, why: 'PASP = 4·v² + RAP, d/dRAP = 1' },
+  ivc: {
+    visit: IVC_NEAR_DIAMETER_EDGE,
+    output: 'rapUsed',
+    exactSd: (x, sd) => twoPointSd(8, 15, 1 - normalCdf((2.1 - x.ivc!) / sd)),
+    why: 'RAP bands of Rudski 2010: above 2.1 cm with < 50 % collapse → 15 mmHg, else 8; SD of the two-point outcome',
+  },
+  ivcCollapse: {
+    visit: IVC_NEAR_COLLAPSE_EDGE,
+    output: 'rapUsed',
+    exactSd: (x, sd) => twoPointSd(8, 15, 1 - normalCdf((50 - x.ivcCollapse!) / sd)),
+    why: 'RAP bands of Rudski 2010: a dilated IVC collapsing < 50 % → 15 mmHg, 50 % or more → 8; SD of the two-point outcome',
+  },
 };
 
 /**
@@ -71,7 +109,7 @@ describe('each input alone: Monte Carlo SD of an output linear in it = first-ord
       const spec = report.errorModel.find((e) => e.input === input);
       expect(spec, `${input} is in the error model of this visit`).toBeDefined();
       expect(spec!.sd).toBeGreaterThan(0);
-      const expected = Math.abs(c.slope(inputs)) * spec!.sd;
+      const expected = c.exactSd ? c.exactSd(inputs, spec!.sd) : Math.abs(c.slope!(inputs)) * spec!.sd;
       const got = report.outputs[c.output]!.sd;
       expect(Math.abs(got / expected - 1), `${c.output}: SD ${got} vs first-order ${expected}`).toBeLessThan(TOLERANCE);
       // With only this input drawn, nothing that does not depend on it moves.
@@ -99,7 +137,7 @@ function reachingWithout(plan: Plan, key: ResultKey, through: ResultKey): Set<st
 }
 
 describe('every input with an error shows in the sensitivity split of every output whose graph depends on it', () => {
-  for (const [name, visit] of [['volumetric SV, reported EF', BASE], ['LVOT Doppler SV', WITH_LVOT], ['measured Pes', MEASURED_PES], ['EF from the volumes', { ...BASE, ef: undefined }]] as const) {
+  for (const [name, visit] of [['volumetric SV, reported EF', BASE], ['LVOT Doppler SV', WITH_LVOT], ['measured Pes', MEASURED_PES], ['EF from the volumes', { ...BASE, ef: undefined }], ['right heart, measured RAP', RIGHT_HEART], ['right heart, RAP from the IVC', IVC_NEAR_DIAMETER_EDGE]] as const) {
     it(name, () => {
       const inputs = parseInputs(visit);
       const plan = visitPlan(inputs);

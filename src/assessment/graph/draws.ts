@@ -107,7 +107,9 @@ export function compileDraws(plan: Plan, nominal: Float64Array, varying: readonl
     if (drawn.includes(s)) {
       const spec = GRAPH_INPUTS[s]!;
       const below = 'below' in spec ? ` && v${s} < ${spec.below}` : '';
-      lines.push(`let v${s} = c${s}[i];`, `if (!(v${s} > 0${below})) v${s} = NaN;`);
+      // Zero is a possible value of some inputs (a right-atrial pressure, a collapse of 0 %).
+      const floor = 'zeroAllowed' in spec && spec.zeroAllowed ? '>= 0' : '> 0';
+      lines.push(`let v${s} = c${s}[i];`, `if (!(v${s} ${floor}${below})) v${s} = NaN;`);
     } else lines.push(`let v${s} = k[${s}];`);
   }
   for (const r of relations) {

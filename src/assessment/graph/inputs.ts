@@ -23,6 +23,11 @@ export const GRAPH_INPUTS = [
   { key: 'pesMeasured', needs: 'a measured end-systolic pressure' },
   { key: 'height', needs: 'height' },
   { key: 'weight', needs: 'weight' },
+  { key: 'tapse', needs: 'TAPSE' },
+  { key: 'trVelocity', needs: 'a peak tricuspid regurgitant velocity (a measurable TR jet)' },
+  { key: 'rap', needs: 'a right-atrial pressure', zeroAllowed: true },
+  { key: 'ivc', needs: 'the IVC diameter' },
+  { key: 'ivcCollapse', needs: 'the IVC collapse with a sniff', below: 100, zeroAllowed: true },
 ] as const satisfies readonly GraphInput[];
 
 export type GraphInputKey = (typeof GRAPH_INPUTS)[number]['key'];

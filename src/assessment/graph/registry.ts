@@ -8,9 +8,10 @@ import { GRAPH_INPUT_KEYS } from './inputs.js';
 import { ELASTANCE_NODES } from './nodes/elastance.js';
 import { FLOW_NODES } from './nodes/flow.js';
 import { PRESSURE_NODES } from './nodes/pressure.js';
+import { RIGHT_HEART_NODES } from './nodes/right-heart.js';
 import type { NodeDef } from './types.js';
 
-export const NODES = [...PRESSURE_NODES, ...FLOW_NODES, ...ELASTANCE_NODES] as const;
+export const NODES = [...PRESSURE_NODES, ...FLOW_NODES, ...ELASTANCE_NODES, ...RIGHT_HEART_NODES] as const;
 
 export type ResultKey = (typeof NODES)[number]['key'];
 export const RESULT_KEYS: readonly ResultKey[] = NODES.map((n) => n.key);

@@ -62,6 +62,8 @@ export interface GraphInput {
   needs: string;
   /** A drawn value must be below this (exclusive); every input must also be above 0. */
   below?: number;
+  /** The value may be 0 (a right-atrial pressure, a collapse of 0 %): a draw must then be ≥ 0 rather than > 0. */
+  zeroAllowed?: true;
   /**
    * A relation to another input a draw must keep: `lessThan` this one must be
    * below it; `greaterThan` above it. With `losesBoth` a violation loses both
