@@ -101,3 +101,17 @@ export function runScenario(a: Assessment, changes: ScenarioChanges, shape: Elas
 function loopOf(b: SimulatedBeat): PressureVolumePoint[] {
   return b.loop ?? [];
 }
+
+/** Printed with every projection, in every view. */
+export const SCENARIO_CAUTIONS: readonly string[] = [
+  'A model projection under stated assumptions (docs/model.md), not a prediction of what a treatment will do.',
+  'Reflexes, drugs that act on several parameters at once and valve disease are not modelled; everything not changed is held as fitted.',
+  'The model inherits the single-beat Ees and V0 and their error; its aortic pressures are fitted to the cuff values (brachial amplification is not modelled).',
+  'Defer to clinical judgement, local protocols and licensed clinical practice for any decision about care.',
+];
+
+export const SCENARIO_LABELS: Readonly<Record<import('./project.js').ScenarioKey, string>> = {
+  sv: 'Stroke volume (SV)', ef: 'Ejection fraction (EF)', edv: 'End-diastolic volume (EDV)', esv: 'End-systolic volume (ESV)',
+  sbp: 'Systolic pressure (SBP)', dbp: 'Diastolic pressure (DBP)', pes: 'End-systolic pressure (Pes)', ea: 'Arterial elastance (Ea)',
+  ees: 'End-systolic elastance (Ees)', eaEes: 'Ea/Ees', co: 'Cardiac output (CO)', sw: 'Stroke work (Pes × SV)', swPva: 'Efficiency (SW/PVA)', hr: 'Heart rate',
+};

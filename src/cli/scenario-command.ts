@@ -1,0 +1,151 @@
+/**
+ * `elastimate scenario`: the visit (flags, --input, or --subject with --visit)
+ * is assessed, the subject's model is fitted, the changes are projected, and
+ * the result is shown side by side (src/render/scenario.ts). Thin: parsing
+ * and threads here, the model in src/model.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import { assess, type Assessment } from '../assessment/assess.js';
+import { parseInputs } from '../assessment/inputs.js';
+import { quantileInPlace } from '../assessment/monte-carlo.js';
+import { InputError, showValue, type InputProblem } from '../errors.js';
+import { ELASTANCE_SHAPES, DEFAULT_ELASTANCE_SHAPE, type ElastanceShape } from '../model/double-hill.js';
+import type { ScenarioChanges } from '../model/project.js';
+import { runScenario } from '../model/scenario.js';
+import {
+  baselineFitState, chunksOf, INTERVAL_DRAWS, mergeChunks, scenarioChunk,
+  type ChunkRequest, type ChunkResult, type ScenarioIntervals,
+} from '../model/scenario-intervals.js';
+import { bareNumber, toInternalUnit } from '../units/quantity.js';
+import { completeRaw, gatherRaw } from './assess-command.js';
+
+/** Accepted ranges of the changes. */
+export const CHANGE_RANGES = {
+  toHr: { min: 30, max: 180, unit: 'bpm' },
+  toEdv: { min: 20, max: 600, unit: 'mL' },
+  percent: { min: -80, max: 300 },
+} as const;
+
+const PERCENT_FLAGS = [
+  ['resistance', '--resistance'],
+  ['compliance', '--compliance'],
+  ['contractility', '--contractility'],
+] as const;
+
+/** A signed percentage as typed: "-20", "+15", "15%", "−10 %". NaN when it is not one. */
+export function parseSignedPercent(raw: string): number {
+  const text = raw.trim().replace(/^\u2212/, '-').replace(/\s*%$/, '');
+  return bareNumber(text);
+}
+
+/** The changes from the options, every problem in one message. */
+export function changesFromOptions(opts: Record<string, unknown>): ScenarioChanges {
+  const problems: InputProblem[] = [];
+  const changes: ScenarioChanges = {};
+  const target = (key: 'toHr' | 'toEdv', flag: string, kind: 'rate' | 'volume') => {
+    const raw = opts[key];
+    if (raw === undefined) return;
+    const r = CHANGE_RANGES[key];
+    const accepted = `${r.min}–${r.max} ${r.unit}, optionally with a unit`;
+    try {
+      const v = toInternalUnit(flag, raw, kind);
+      if (v < r.min || v > r.max) problems.push({ field: flag, value: showValue(raw), accepted });
+      else changes[key] = v;
+    } catch (err) {
+      if (!(err instanceof InputError)) throw err;
+      problems.push({ field: flag, value: showValue(raw), accepted });
+    }
+  };
+  target('toHr', '--to-hr', 'rate');
+  target('toEdv', '--to-edv', 'volume');
+  for (const [key, flag] of PERCENT_FLAGS) {
+    const raw = opts[key];
+    if (raw === undefined) continue;
+    const v = typeof raw === 'string' ? parseSignedPercent(raw) : Number.NaN;
+    const { min, max } = CHANGE_RANGES.percent;
+    if (!(v >= min && v <= max)) problems.push({ field: flag, value: showValue(raw), accepted: `a signed percentage from ${min} to +${max}, e.g. -20 or +15%` });
+    else changes[key] = v;
+  }
+  if (problems.length) throw new InputError(problems);
+  return changes;
+}
+
+export function shapeFromOption(raw: unknown): ElastanceShape {
+  if (raw === undefined) return DEFAULT_ELASTANCE_SHAPE;
+  if (typeof raw === 'string' && (ELASTANCE_SHAPES as readonly string[]).includes(raw)) return raw as ElastanceShape;
+  throw new InputError({ field: '--shape', value: showValue(raw), accepted: ELASTANCE_SHAPES.join(' or ') });
+}
+
+export function drawsFromOption(raw: unknown): number {
+  const { min, max } = INTERVAL_DRAWS;
+  const v = typeof raw === 'string' && /^\d+$/.test(raw.trim()) ? Number(raw) : Number.NaN;
+  if (!(v >= min && v <= max)) throw new InputError({ field: '--draws', value: showValue(raw), accepted: `a whole number of draws, ${min}–${max}` });
+  return v;
+}
+
+export function seedFromOption(raw: unknown): number {
+  const v = typeof raw === 'string' && /^\d+$/.test(raw.trim()) ? Number(raw) : Number.NaN;
+  if (!(v >= 0 && v <= 4_294_967_295)) throw new InputError({ field: '--seed', value: showValue(raw), accepted: 'a whole number, 0–4294967295' });
+  return v;
+}
+
+async function visitAssessment(opts: Record<string, unknown>, inputFile: string | undefined): Promise<Assessment> {
+  if (opts.subject !== undefined) {
+    if (inputFile !== undefined) throw new InputError({ field: '--subject', value: showValue(opts.subject), reason: 'given together with --input', accepted: 'one source of the visit: --subject (with --visit) or --input and flags' });
+    const [{ readSubjectFile }, { assessSeries, findVisit }] = await Promise.all([import('../records/store.js'), import('../records/series.js')]);
+    const file = readSubjectFile(String(opts.subject));
+    const series = assessSeries(file);
+    if (series.length === 0) throw new InputError({ field: '--subject', value: showValue(opts.subject), reason: 'has no visits yet', accepted: 'a subject file with at least one visit' });
+    const index = opts.visit !== undefined ? findVisit(file, String(opts.visit)).index : series[series.length - 1]!.index;
+    return series.find((e) => e.index === index)!.assessment;
+  }
+  if (opts.visit !== undefined) throw new InputError({ field: '--visit', value: showValue(opts.visit), reason: 'needs --subject', accepted: 'a visit number or date of the subject file given with --subject' });
+  const raw = await completeRaw(gatherRaw(opts, inputFile), opts);
+  return assess(parseInputs(raw));
+}
+
+/** Chunks on this thread and on one worker per further core (at most one: the machine is shared). */
+export async function computeIntervals(requests: ChunkRequest[], workerUrl: URL | null): Promise<ChunkResult[]> {
+  const useWorker = workerUrl !== null && availableParallelism() > 1 && requests.length > 1;
+  if (!useWorker) return requests.map(scenarioChunk);
+  const mine = requests.filter((_r, i) => i % 2 === 0);
+  const theirs = requests.filter((_r, i) => i % 2 === 1);
+  const worker = new Worker(workerUrl, { execArgv: [] });
+  const answer = new Promise<ChunkResult[]>((resolve, reject) => {
+    worker.once('message', (m: ChunkResult[]) => resolve(m));
+    worker.once('error', reject);
+    worker.once('exit', (code) => reject(new Error(`scenario worker stopped (exit code ${code})`)));
+  });
+  worker.postMessage(theirs);
+  const local = mine.map(scenarioChunk);
+  const remote = await answer;
+  await worker.terminate();
+  // Back in chunk order, so the result does not depend on the split.
+  return requests.map((_r, i) => (i % 2 === 0 ? local[i / 2]! : remote[(i - 1) / 2]!));
+}
+
+export async function runScenarioCommand(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
+  const changes = changesFromOptions(opts);
+  const shape = shapeFromOption(opts.shape);
+  const wantsIntervals = opts.intervals === true || opts.draws !== undefined || opts.seed !== undefined;
+  const draws = opts.draws !== undefined ? drawsFromOption(opts.draws) : INTERVAL_DRAWS.default;
+  const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
+  const a = await visitAssessment(opts, inputFile);
+  const result = runScenario(a, changes, shape);
+  let intervals: ScenarioIntervals | undefined;
+  if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
+    const warm = baselineFitState(result.fitted);
+    const requests = chunksOf(draws).map(({ chunk, draws: n }) => ({ inputs: a.inputs, changes, shape, warm, seed, chunk, draws: n }));
+    const results = await computeIntervals(requests, new URL('./scenario-worker.js', import.meta.url));
+    intervals = mergeChunks(results, draws, seed, quantileInPlace);
+  }
+  const view = await import('../render/scenario.js');
+  if (opts.json === true) {
+    const [{ stringifySafe }, { toolVersion }] = await Promise.all([import('../render/json.js'), import('./package-info.js')]);
+    process.stdout.write(stringifySafe(view.scenarioToJson(result, toolVersion(), intervals)) + '\n');
+  } else {
+    const { terminalStyle } = await import('./output.js');
+    process.stdout.write(view.renderScenario(result, { style: await terminalStyle(), ...(intervals ? { intervals } : {}), width: process.stdout.columns ?? 100 }) + '\n');
+  }
+}
