@@ -44,6 +44,8 @@ export interface FitSuccess {
   state: ModelState;
   residuals: Record<FitTargetKey, number>;
   iterations: number;
+  /** the last Jacobian used, for warm-starting neighbouring fits */
+  jacobian: number[][] | null;
 }
 export interface FitFailure {
   ok: false;
@@ -92,6 +94,8 @@ export interface FitOptions {
   maxIterations?: number;
   /** a steady state to start each simulation from (warm start) */
   start?: ModelState;
+  /** a Jacobian of the residuals in log-parameters from a neighbouring fit (warm start) */
+  jacobian?: number[][];
 }
 
 /** Fit source pressure, R, C and Zc so the steady beat reproduces the targets. `start` holds the fixed parameters and the first guess. */
@@ -104,15 +108,43 @@ export function fitHeartModel(startModel: HeartModel, targets: FitTargets, optio
   let lambda = 1e-2;
   let iterations = 0;
   const h = 0.01;
+  // A Jacobian handed in (from a neighbouring fit) is used and updated by Broyden's rule
+  // (Broyden CG, Math Comput 1965;19:577) until a step fails; then one is computed.
+  let broyden: number[][] | null = options.jacobian ? options.jacobian.map((row) => [...row]) : null;
+  let lastJ: number[][] | null = null;
   while (iterations < maxIterations && maxAbs(current.r) >= FIT_STOP) {
     iterations++;
-    const J: number[][] = current.r.map(() => [0, 0, 0, 0]);
-    for (let j = 0; j < 4; j++) {
-      const xp = [...x];
-      xp[j] = xp[j]! + h;
-      const e = evaluate(startModel, xp, targets, current.beat.endState);
-      if (!('r' in e)) return { ok: false, reason: `the model stops beating steadily near the fit: ${e.reason}`, residuals: residualRecord(current.r) };
-      for (let i = 0; i < 4; i++) J[i]![j] = (e.r[i]! - current.r[i]!) / h;
+    let J: number[][];
+    if (broyden) J = broyden;
+    else {
+      J = current.r.map(() => [0, 0, 0, 0]);
+      for (let j = 0; j < 4; j++) {
+        const xp = [...x];
+        xp[j] = xp[j]! + h;
+        const e = evaluate(startModel, xp, targets, current.beat.endState);
+        if (!('r' in e)) return { ok: false, reason: `the model stops beating steadily near the fit: ${e.reason}`, residuals: residualRecord(current.r) };
+        for (let i = 0; i < 4; i++) J[i]![j] = (e.r[i]! - current.r[i]!) / h;
+      }
+    }
+    lastJ = J;
+    if (broyden) {
+      const delta = solveLinear(J, current.r.map((v) => -v));
+      const scale = delta ? Math.min(1, 0.7 / Math.max(1e-12, maxAbs(delta))) : 0;
+      const xn = delta ? clampVector(x.map((xi, i) => xi + scale * delta[i]!)) : x;
+      const e = delta ? evaluate(startModel, xn, targets, current.beat.endState) : null;
+      if (e && 'r' in e && e.cost < current.cost) {
+        const dx = xn.map((v, i) => v - x[i]!);
+        const dxx = dx.reduce((acc, v) => acc + v * v, 0);
+        if (dxx > 0) {
+          const jdx = J.map((row) => row.reduce((acc, v, j) => acc + v * dx[j]!, 0));
+          broyden = J.map((row, i) => row.map((v, j) => v + ((e.r[i]! - current.r[i]! - jdx[i]!) * dx[j]!) / dxx));
+        }
+        x = xn;
+        current = e;
+      } else {
+        broyden = null;
+      }
+      continue;
     }
     const JtJ = [0, 1, 2, 3].map((a) => [0, 1, 2, 3].map((b) => J.reduce((s, row) => s + row[a]! * row[b]!, 0)));
     const Jtr = [0, 1, 2, 3].map((a) => J.reduce((s, row, i) => s + row[a]! * current.r[i]!, 0));
@@ -149,5 +181,5 @@ export function fitHeartModel(startModel: HeartModel, targets: FitTargets, optio
       residuals,
     };
   }
-  return { ok: true, model: current.model, beat: current.beat, state: current.beat.endState, residuals, iterations };
+  return { ok: true, model: current.model, beat: current.beat, state: current.beat.endState, residuals, iterations, jacobian: lastJ };
 }

@@ -43,11 +43,12 @@ export interface BaselineFitState {
   characteristicImpedance: number;
   volume: number;
   compliancePressure: number;
+  jacobian: number[][] | null;
 }
 
 export function baselineFitState(fit: FitSuccess): BaselineFitState {
   const { sourcePressure, arteries } = fit.model;
-  return { sourcePressure, ...arteries, volume: fit.state.volume, compliancePressure: fit.state.compliancePressure };
+  return { sourcePressure, ...arteries, volume: fit.state.volume, compliancePressure: fit.state.compliancePressure, jacobian: fit.jacobian };
 }
 
 export interface ChunkRequest {
@@ -102,7 +103,7 @@ export function scenarioChunk(req: ChunkRequest): ChunkResult {
       sourcePressure: warm.sourcePressure,
       arteries: { resistance: warm.resistance, compliance: warm.compliance, characteristicImpedance: warm.characteristicImpedance },
     };
-    const fit = fitHeartModel(start, setup.targets, { start: { volume: warm.volume, compliancePressure: warm.compliancePressure }, maxIterations: 12 });
+    const fit = fitHeartModel(start, setup.targets, { start: { volume: warm.volume, compliancePressure: warm.compliancePressure }, maxIterations: 12, ...(warm.jacobian ? { jacobian: warm.jacobian } : {}) });
     if (!fit.ok) {
       fail('fitFailed');
       continue;

@@ -34,7 +34,10 @@ export interface SubjectNumbers {
   ees: number | null;
   /** why Ees is missing */
   eesReason?: string;
+  /** V0 of the end-systolic line through (EDV − SV, Pes): the model's V0 */
   v0: number | null;
+  /** the assessment's V0 (ESV − Pes/Ees), for the note when the two differ */
+  assessedV0?: number | null;
   edv: number;
   esv: number;
   sv: number;
@@ -63,12 +66,19 @@ export type SubjectSetupOutcome = SubjectSetup | { ok: false; reason: string };
 export function numbersFromAssessment(a: Assessment): SubjectNumbers {
   const { inputs, results, mechanics } = a;
   const curve = mechanics?.diastolic.curve ?? null;
+  const sv = results.sv.value ?? inputs.edv - inputs.esv;
+  const ees = results.ees.value;
+  const pes = results.pes.value;
   const n: SubjectNumbers = {
-    ees: results.ees.value,
-    v0: results.v0.value,
+    ees,
+    // The end-systolic line through the end-systolic point of the single-beat method itself:
+    // Chen 2001 takes end-systole at EDV − SV with the SV it is given, so V0 = EDV − SV − Pes/Ees.
+    // With a volumetric SV this is the assessment's V0 (ESV − Pes/Ees) exactly.
+    v0: ees !== null && pes !== null && ees > 0 ? inputs.edv - sv - pes / ees : null,
+    assessedV0: results.v0.value,
     edv: inputs.edv,
     esv: inputs.esv,
-    sv: results.sv.value ?? inputs.edv - inputs.esv,
+    sv,
     sbp: inputs.sbp,
     dbp: inputs.dbp,
     hr: inputs.hr,
@@ -95,6 +105,9 @@ export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_
   if (!(timeToPeak > 50)) return { ok: false, reason: 'PEP + ET is too short for a contraction' };
   if (!(n.pep + n.et < 60_000 / n.hr)) return { ok: false, reason: 'PEP + ET is longer than the heart period' };
   const notes: string[] = [];
+  if (n.assessedV0 !== undefined && n.assessedV0 !== null && Math.abs(n.assessedV0 - n.v0) >= 1) {
+    notes.push(`V0 of the model is ${n.v0.toFixed(0)} mL, the end-systolic line through EDV − SV (the Doppler stroke volume) at Pes; the assessment's V0 through the echo ESV is ${n.assessedV0.toFixed(0)} mL.`);
+  }
   let edp = n.edp;
   let edpSource: SubjectSetup['edpSource'];
   if (edp === null || n.edpSource === 'none') {
