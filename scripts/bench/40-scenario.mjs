@@ -1,0 +1,18 @@
+// Scenario (issue 12): `scenario` without intervals within 3× a plain `assess --json` on the same visit,
+// side by side; and `scenario --intervals` (200 draws, warm-started refits, two threads) against its aim
+// of 10 s on this 2-core machine, shown as the fraction of that budget.
+import { join } from 'node:path';
+
+export async function run({ root, bin, compare, once, median }) {
+  const visit = join(root, 'cases', 'hypertension-trial.visit.json');
+  const plain = [bin, 'assess', '--input', visit, '--json'];
+  const scenario = [bin, 'scenario', '--input', visit, '--resistance', '-20', '--json'];
+  const r = compare(scenario, plain, 7);
+  const withIntervals = [bin, 'scenario', '--input', visit, '--resistance', '-20', '--intervals', '--json'];
+  const times = [once(withIntervals), once(withIntervals), once(withIntervals)];
+  const ms = median(times);
+  return [
+    { name: 'scenario --json (fit + projection) vs plain assess --json', ratio: r.ratio, limit: 3.0, detail: `${r.ms.toFixed(0)} ms vs ${r.refMs.toFixed(0)} ms` },
+    { name: 'scenario --intervals (200 draws, 2 threads) vs a 10 s budget', ratio: ms / 10_000, limit: 1.0, detail: `${ms.toFixed(0)} ms` },
+  ];
+}
