@@ -8,7 +8,7 @@ import { InputError } from '../errors.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
-import { registerScenarioCommand } from './scenario-options.js';
+import { registerScenarioCommand, registerSyntheticCommand } from './scenario-options.js';
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
@@ -60,6 +60,7 @@ export function buildProgram(): Command {
 
   registerRecordCommands(program, inputFileOf);
   registerScenarioCommand(program, inputFileOf);
+  registerSyntheticCommand(program);
 
   program
     .command('report')
@@ -106,7 +107,7 @@ export function commanderMessage(text: string): string {
     [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
     [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
     [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
-    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, report, scenario (see --help)`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, report, scenario, synthetic (see --help)`],
   ];
   for (const [pattern, format] of rules) {
     const m = pattern.exec(message);

@@ -4,8 +4,6 @@
  * the result is shown side by side (src/render/scenario.ts). Thin: parsing
  * and threads here, the model in src/model.
  */
-import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
 import { assess, type Assessment } from '../assessment/assess.js';
 import { parseInputs } from '../assessment/inputs.js';
 import { quantileInPlace } from '../assessment/monte-carlo.js';
@@ -105,26 +103,6 @@ async function visitAssessment(opts: Record<string, unknown>, inputFile: string 
   return assess(parseInputs(raw));
 }
 
-/** Chunks on this thread and on one worker per further core (at most one: the machine is shared). */
-export async function computeIntervals(requests: ChunkRequest[], workerUrl: URL | null): Promise<ChunkResult[]> {
-  const useWorker = workerUrl !== null && availableParallelism() > 1 && requests.length > 1;
-  if (!useWorker) return requests.map(scenarioChunk);
-  const mine = requests.filter((_r, i) => i % 2 === 0);
-  const theirs = requests.filter((_r, i) => i % 2 === 1);
-  const worker = new Worker(workerUrl, { execArgv: [] });
-  const answer = new Promise<ChunkResult[]>((resolve, reject) => {
-    worker.once('message', (m: ChunkResult[]) => resolve(m));
-    worker.once('error', reject);
-    worker.once('exit', (code) => reject(new Error(`scenario worker stopped (exit code ${code})`)));
-  });
-  worker.postMessage(theirs);
-  const local = mine.map(scenarioChunk);
-  const remote = await answer;
-  await worker.terminate();
-  // Back in chunk order, so the result does not depend on the split.
-  return requests.map((_r, i) => (i % 2 === 0 ? local[i / 2]! : remote[(i - 1) / 2]!));
-}
-
 export async function runScenarioCommand(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
   const changes = changesFromOptions(opts);
   const shape = shapeFromOption(opts.shape);
@@ -137,7 +115,8 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
     const warm = baselineFitState(result.fitted);
     const requests = chunksOf(draws).map(({ chunk, draws: n }) => ({ inputs: a.inputs, changes, shape, warm, seed, chunk, draws: n }));
-    const results = await computeIntervals(requests, new URL('./scenario-worker.js', import.meta.url));
+    const { splitOverThreads } = await import('./threads.js');
+    const results = await splitOverThreads<ChunkRequest, ChunkResult>('scenario', requests, scenarioChunk);
     intervals = mergeChunks(results, draws, seed, quantileInPlace);
   }
   const view = await import('../render/scenario.js');

@@ -27,3 +27,19 @@ export function registerScenarioCommand(program: Command, inputFileOf: (cmd: Com
       await runScenarioCommand(opts, inputFileOf(cmd));
     });
 }
+
+export function registerSyntheticCommand(program: Command): void {
+  program
+    .command('synthetic')
+    .description('known-truth check of the single-beat method: a seeded virtual cohort with known Ees (docs/model.md)')
+    .option('--n <count>', 'virtual adults, 10–5000 (default 200)')
+    .option('--seed <n>', 'seed of the cohort, 0–4294967295 (default 1)')
+    .option('--shape <set>', 'normalized elastance shape: hill-a, hill-b or both (default both)')
+    .option('--csv', 'print one row per virtual adult and shape as CSV (the summary goes to stderr)')
+    .option('--json', 'print one JSON object: subjects and summary (docs/model.md)')
+    .option('--svg <file>', 'also write the Bland–Altman plot as SVG')
+    .action(async (opts: Record<string, unknown>) => {
+      const { runSynthetic } = await import('./synthetic-command.js');
+      await runSynthetic(opts);
+    });
+}

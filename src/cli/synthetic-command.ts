@@ -1,0 +1,60 @@
+/**
+ * `elastimate synthetic`: a seeded virtual cohort with known Ees, observed as
+ * echo and cuff would observe it and estimated by the single-beat method
+ * (src/model/synthetic.ts). Thin: options, threads and output here.
+ */
+import { InputError, showValue } from '../errors.js';
+import { ELASTANCE_SHAPES, type ElastanceShape } from '../model/double-hill.js';
+import { agreement, SYNTHETIC_CHUNK, type SyntheticRow } from '../model/synthetic.js';
+import type { CohortSummary } from '../render/synthetic.js';
+import { runSyntheticRequest, type SyntheticRequest } from './model-worker.js';
+import { seedFromOption } from './scenario-command.js';
+
+export const COHORT_SIZE = { default: 200, min: 10, max: 5000 } as const;
+
+function cohortSize(raw: unknown): number {
+  const v = typeof raw === 'string' && /^\d+$/.test(raw.trim()) ? Number(raw) : Number.NaN;
+  if (!(v >= COHORT_SIZE.min && v <= COHORT_SIZE.max)) throw new InputError({ field: '--n', value: showValue(raw), accepted: `a whole number of virtual adults, ${COHORT_SIZE.min}–${COHORT_SIZE.max}` });
+  return v;
+}
+
+function shapesOf(raw: unknown): ElastanceShape[] {
+  if (raw === undefined || raw === 'both') return [...ELASTANCE_SHAPES];
+  if (typeof raw === 'string' && (ELASTANCE_SHAPES as readonly string[]).includes(raw)) return [raw as ElastanceShape];
+  throw new InputError({ field: '--shape', value: showValue(raw), accepted: `${ELASTANCE_SHAPES.join(', ')} or both (default both)` });
+}
+
+export function cohortSummary(rows: readonly SyntheticRow[], n: number, seed: number, shapes: ElastanceShape[]): CohortSummary {
+  const byShape: CohortSummary['byShape'] = {};
+  for (const shape of shapes) {
+    const mine = rows.filter((r) => r.shape === shape);
+    byShape[shape] = { againstEmax: agreement(mine, 'trueEes'), againstOcclusion: agreement(mine, 'occlusionEes') };
+  }
+  return { seed, n, shapes, byShape };
+}
+
+export async function runSynthetic(opts: Record<string, unknown>): Promise<void> {
+  const n = opts.n !== undefined ? cohortSize(opts.n) : COHORT_SIZE.default;
+  const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
+  const shapes = shapesOf(opts.shape);
+  const diagrams = opts.svg !== undefined ? await import('./output-files.js') : null;
+  const svgPath = diagrams ? diagrams.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect: [] }) : null;
+  const requests: SyntheticRequest[] = [];
+  for (let c = 0, left = n; left > 0; c++, left -= SYNTHETIC_CHUNK) requests.push({ seed, chunk: c, count: Math.min(SYNTHETIC_CHUNK, left), shapes });
+  const { splitOverThreads } = await import('./threads.js');
+  const rows = (await splitOverThreads<SyntheticRequest, SyntheticRow[]>('synthetic', requests, runSyntheticRequest)).flat();
+  const summary = cohortSummary(rows, n, seed, shapes);
+  const view = await import('../render/synthetic.js');
+  if (diagrams && svgPath) await diagrams.writeTextAtomically(svgPath, view.blandAltmanSvg(rows, summary), '--svg');
+  if (opts.json === true) {
+    const [{ stringifySafe }, { toolVersion }] = await Promise.all([import('../render/json.js'), import('./package-info.js')]);
+    process.stdout.write(stringifySafe(view.syntheticJson(rows, summary, toolVersion())) + '\n');
+    return;
+  }
+  if (opts.csv === true) {
+    process.stdout.write(view.syntheticCsv(rows));
+    process.stderr.write(view.syntheticSummaryText(summary));
+    return;
+  }
+  process.stdout.write(view.syntheticSummaryText(summary, process.stdout.columns ?? 100));
+}

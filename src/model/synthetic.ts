@@ -1,0 +1,208 @@
+/**
+ * Known truth for the single-beat method: virtual adults with known Emax,
+ * simulated to steady state, observed as echo and cuff would observe them,
+ * and estimated by the same assessment a visit gets.
+ *
+ * Each virtual adult (seeded; chunk c of N uses random stream c):
+ *   Emax uniform 0.5–5 mmHg/mL, V0 −50 to +40 mL, R 0.7–2.5 mmHg·s/mL,
+ *   C 0.6–2.5 mL/mmHg, HR 45–120 bpm, EDV 70–280 mL, EDP 5–20 mmHg
+ *   (method-notes §13 ranges, from memory), Zc 5–10 % of R (from memory),
+ *   systolic duration: PEP and ET from the Weissler 1968 regressions for men
+ *   at the drawn heart rate, each scaled by a factor uniform 0.85–1.15.
+ * Filling: the Klotz curve through (EDV, EDP) with the source pressure at EDP.
+ * Observed (what echo and cuff would report): EDV, ESV (at aortic valve
+ * closure), EF, SBP and DBP of the aortic pressure, HR, PEP (QRS onset to
+ * aortic opening, so including the electromechanical delay) and ET.
+ * Estimated: the assessment of those numbers (single-beat Ees, tNd, Ea).
+ * True Ees two ways: the model's Emax, and a virtual preload reduction
+ * (virtual-occlusion.ts). Subjects that do not reach a steady state, or
+ * whose observations fall outside the tool's accepted input ranges, are
+ * counted and kept with a reason.
+ *
+ * What this measures is agreement within the model: the single-beat
+ * method's normalized elastance curve was fitted to human ventricles and a
+ * double Hill ventricle has its own curve, so the bias depends on the
+ * shape; both shapes are run and reported. Nothing is tuned to make the
+ * estimator look good.
+ */
+import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
+import { assess } from '../assessment/assess.js';
+import { parseInputs } from '../assessment/inputs.js';
+import { randomStreams } from '../assessment/monte-carlo.js';
+import { InputError } from '../errors.js';
+import { endDiastolicCurveFromOnePoint } from '../physiology/end-diastolic-pressure-volume.js';
+import { ELECTROMECHANICAL_DELAY_MS, simulateToSteadyState, type HeartModel } from './beat.js';
+import type { ElastanceShape } from './double-hill.js';
+import { INFLOW_RESISTANCE } from './valves.js';
+import { virtualOcclusion } from './virtual-occlusion.js';
+
+export const VIRTUAL_RANGES = {
+  emax: [0.5, 5],
+  v0: [-50, 40],
+  resistance: [0.7, 2.5],
+  compliance: [0.6, 2.5],
+  hr: [45, 120],
+  edv: [70, 280],
+  edp: [5, 20],
+  zcFraction: [0.05, 0.1],
+  timingFactor: [0.85, 1.15],
+} as const;
+
+export interface VirtualHeart {
+  emax: number;
+  v0: number;
+  resistance: number;
+  compliance: number;
+  zc: number;
+  hr: number;
+  edv: number;
+  edp: number;
+  pep: number;
+  et: number;
+}
+
+export interface SyntheticRow {
+  id: number;
+  shape: ElastanceShape;
+  heart: VirtualHeart;
+  observed: { edv: number; esv: number; ef: number; sbp: number; dbp: number; hr: number; pep: number; et: number } | null;
+  trueEes: number;
+  occlusionEes: number | null;
+  estimatedEes: number | null;
+  tNd: number | null;
+  ea: number | null;
+  eaEes: number | null;
+  /** why estimatedEes (or the whole row) is missing */
+  reason?: string;
+}
+
+function uniform(rng: RandomGenerator, [lo, hi]: readonly [number, number]): number {
+  const u = ((rng.next() >>> 0) + 0.5) / 4294967296;
+  return lo + u * (hi - lo);
+}
+
+/** One virtual heart from a stream. */
+export function drawHeart(rng: RandomGenerator): VirtualHeart {
+  const r = VIRTUAL_RANGES;
+  const hr = uniform(rng, r.hr);
+  const resistance = uniform(rng, r.resistance);
+  const heart = {
+    emax: uniform(rng, r.emax),
+    v0: uniform(rng, r.v0),
+    resistance,
+    compliance: uniform(rng, r.compliance),
+    zc: resistance * uniform(rng, r.zcFraction),
+    hr,
+    edv: uniform(rng, r.edv),
+    edp: uniform(rng, r.edp),
+    // Weissler 1968, men (systolic-intervals.ts), scaled per heart.
+    pep: (131 - 0.4 * hr) * uniform(rng, r.timingFactor),
+    et: (413 - 1.7 * hr) * uniform(rng, r.timingFactor),
+  };
+  return heart;
+}
+
+export function heartModelOf(h: VirtualHeart, shape: ElastanceShape): HeartModel | null {
+  const curve = endDiastolicCurveFromOnePoint(h.edv, h.edp).curve;
+  if (curve === null) return null;
+  return {
+    ventricle: { ees: h.emax, v0: h.v0, passive: { alpha: curve.alpha, beta: curve.beta } },
+    heartRate: h.hr,
+    timeToPeak: h.pep + h.et - ELECTROMECHANICAL_DELAY_MS,
+    electromechanicalDelay: ELECTROMECHANICAL_DELAY_MS,
+    shape,
+    arteries: { resistance: h.resistance, compliance: h.compliance, characteristicImpedance: h.zc },
+    sourcePressure: h.edp,
+    inflowResistance: INFLOW_RESISTANCE,
+  };
+}
+
+/** Simulate, observe, estimate and occlude one virtual heart. */
+export function syntheticRow(id: number, h: VirtualHeart, shape: ElastanceShape, occlude = true): SyntheticRow {
+  const row: SyntheticRow = { id, shape, heart: h, observed: null, trueEes: h.emax, occlusionEes: null, estimatedEes: null, tNd: null, ea: null, eaEes: null };
+  const model = heartModelOf(h, shape);
+  if (model === null) return { ...row, reason: 'no diastolic curve for this EDV and EDP' };
+  const steady = simulateToSteadyState(model);
+  if (!steady.ok) return { ...row, reason: steady.reason };
+  const b = steady.beat;
+  row.observed = { edv: b.edv, esv: b.esv, ef: b.ef, sbp: b.sbp, dbp: b.dbp, hr: h.hr, pep: b.pep, et: b.et };
+  if (occlude) {
+    const occ = virtualOcclusion(model, b.endState);
+    if (occ.ok) row.occlusionEes = occ.fit.slope;
+  }
+  try {
+    const round = (x: number, d: number) => Number(x.toFixed(d));
+    const a = assess(parseInputs({
+      sbp: round(b.sbp, 1), dbp: round(b.dbp, 1), hr: round(h.hr, 1), edv: round(b.edv, 1), esv: round(b.esv, 1),
+      ef: round(b.ef, 1), pep: round(b.pep, 1), et: round(b.et, 1),
+    }));
+    row.estimatedEes = a.results.ees.value;
+    row.tNd = a.results.tNd.value;
+    row.ea = a.results.ea.value;
+    row.eaEes = a.results.eaEes.value;
+    if (a.results.ees.reason) row.reason = a.results.ees.reason;
+  } catch (err) {
+    if (!(err instanceof InputError)) throw err;
+    row.reason = `${OUTSIDE_INPUTS}: ${err.message.split('\n')[0]}`;
+  }
+  return row;
+}
+
+export const SYNTHETIC_CHUNK = 25;
+/** Reason prefix of a heart whose observations the tool would refuse as inputs (an implausible adult). */
+export const OUTSIDE_INPUTS = 'the simulated observations fall outside the accepted inputs';
+
+/** Rows of chunk `chunk` (subjects chunk·25 … ), for every shape, from stream `chunk` of the seed. */
+export function syntheticChunk(seed: number, chunk: number, count: number, shapes: readonly ElastanceShape[], occlude = true): SyntheticRow[] {
+  const rng = randomStreams(seed, 1, chunk)[0]!;
+  const rows: SyntheticRow[] = [];
+  for (let i = 0; i < count; i++) {
+    const h = drawHeart(rng);
+    const id = chunk * SYNTHETIC_CHUNK + i + 1;
+    for (const shape of shapes) rows.push(syntheticRow(id, h, shape, occlude));
+  }
+  return rows;
+}
+
+export interface AgreementSummary {
+  n: number;
+  computable: number;
+  /** mean of (estimated − true), mmHg/mL */
+  bias: number | null;
+  /** bias ± 1.96·SD (Bland JM, Altman DG, Lancet 1986;1:307) */
+  loa: [number, number] | null;
+  /** Pearson correlation of estimated and true */
+  r: number | null;
+  failures: { tNdOutsideWindow: number; eesNotPositive: number; notSimulated: number; outsideInputRanges: number; other: number };
+}
+
+/** Bland–Altman agreement of estimated Ees with a reference (Emax or the occlusion slope). */
+export function agreement(rows: readonly SyntheticRow[], reference: 'trueEes' | 'occlusionEes'): AgreementSummary {
+  const pairs = rows.filter((r) => r.estimatedEes !== null && r[reference] !== null).map((r) => [r.estimatedEes!, r[reference]!] as const);
+  const failures = { tNdOutsideWindow: 0, eesNotPositive: 0, notSimulated: 0, outsideInputRanges: 0, other: 0 };
+  for (const r of rows) {
+    if (r.estimatedEes !== null) continue;
+    if (r.observed === null) failures.notSimulated++;
+    else if (r.reason?.startsWith(OUTSIDE_INPUTS)) failures.outsideInputRanges++;
+    else if (/tNd/.test(r.reason ?? '')) failures.tNdOutsideWindow++;
+    else if (/not positive|≤/.test(r.reason ?? '')) failures.eesNotPositive++;
+    else failures.other++;
+  }
+  const n = pairs.length;
+  if (n < 2) return { n: rows.length, computable: n, bias: null, loa: null, r: null, failures };
+  const d = pairs.map(([e, t]) => e - t);
+  const bias = d.reduce((a, b) => a + b, 0) / n;
+  const sd = Math.sqrt(d.reduce((a, b) => a + (b - bias) ** 2, 0) / (n - 1));
+  const mx = pairs.reduce((a, [e]) => a + e, 0) / n;
+  const my = pairs.reduce((a, [, t]) => a + t, 0) / n;
+  let sxy = 0;
+  let sxx = 0;
+  let syy = 0;
+  for (const [e, t] of pairs) {
+    sxy += (e - mx) * (t - my);
+    sxx += (e - mx) ** 2;
+    syy += (t - my) ** 2;
+  }
+  const r = sxx > 0 && syy > 0 ? sxy / Math.sqrt(sxx * syy) : null;
+  return { n: rows.length, computable: n, bias, loa: [bias - 1.96 * sd, bias + 1.96 * sd], r, failures };
+}
