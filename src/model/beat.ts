@@ -165,6 +165,7 @@ export function simulateBeat(m: HeartModel, grid: BeatGrid, start: ModelState, k
     if (!(Number.isFinite(v) && Number.isFinite(pc)) || v > VOLUME_LIMIT || v < -VOLUME_LIMIT || Math.abs(pc) > 1000) {
       return { ok: false, reason: 'the integration left the physiological range (volume or pressure without bound)' };
     }
+    if (v <= 0) return { ok: false, reason: 'the ventricle empties completely (its volume reaches zero): no such heart' };
     const a = act[2 * k]!;
     const plv = ventricularPressure(ventricle, v, a);
     const qout = valveFlow(plv, pc, Zc);
