@@ -109,8 +109,20 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   const wantsIntervals = opts.intervals === true || opts.draws !== undefined || opts.seed !== undefined;
   const draws = opts.draws !== undefined ? drawsFromOption(opts.draws) : INTERVAL_DRAWS.default;
   const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
+  const files = opts.svg !== undefined ? await import('./output-files.js') : null;
+  const svgPath = files ? files.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect: [inputFile, opts.subject].filter((p): p is string => typeof p === 'string') }) : null;
   const a = await visitAssessment(opts, inputFile);
   const result = runScenario(a, changes, shape);
+  const loops = result.loops && result.fit.parameters && result.projected?.ees != null
+    ? {
+        baseline: result.loops.baseline,
+        projected: result.loops.projected,
+        baselineLine: { ees: result.fit.parameters.ees, v0: result.fit.parameters.v0 },
+        projectedLine: { ees: result.projected.ees, v0: result.fit.parameters.v0 },
+      }
+    : null;
+  const drawing = loops && (svgPath || opts.sketch === true) ? await import('../render/model-loops.js') : null;
+  if (files && svgPath && drawing && loops) await files.writeTextAtomically(svgPath, drawing.renderModelLoopsSvg(loops), '--svg');
   let intervals: ScenarioIntervals | undefined;
   if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
     const warm = baselineFitState(result.fitted);
@@ -126,5 +138,9 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   } else {
     const { terminalStyle } = await import('./output.js');
     process.stdout.write(view.renderScenario(result, { style: await terminalStyle(), ...(intervals ? { intervals } : {}), width: process.stdout.columns ?? 100 }) + '\n');
+  }
+  if (opts.sketch === true) {
+    const text = drawing && loops ? ['', 'Simulated pressure–volume loops (model)', ...drawing.renderModelLoopsSketch(loops), ''] : ['', 'No simulated loops to draw: no fitted model or no projection.', ''];
+    (opts.json === true ? process.stderr : process.stdout).write(text.join('\n') + '\n');
   }
 }

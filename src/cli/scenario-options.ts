@@ -22,6 +22,8 @@ export function registerScenarioCommand(program: Command, inputFileOf: (cmd: Com
     .option('--draws <n>', 'Monte Carlo draws for the intervals, 200–5000 (default 200); implies --intervals')
     .option('--seed <n>', 'seed of the draws, 0–4294967295 (default 1); implies --intervals')
     .option('--json', 'print one JSON object (docs/model.md)')
+    .option('--svg <file>', 'also write the simulated baseline and projected loops as SVG')
+    .option('--sketch', 'also print a compact text drawing of the simulated loops')
     .action(async (opts: Record<string, unknown>, cmd: Command) => {
       const { runScenarioCommand } = await import('./scenario-command.js');
       await runScenarioCommand(opts, inputFileOf(cmd));

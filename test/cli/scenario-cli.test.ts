@@ -95,6 +95,24 @@ describe('elastimate scenario (the JSON contract of issue 12; directions from th
   });
 });
 
+describe('elastimate scenario: the simulated loops overlaid', () => {
+  it('--svg writes both loops with their end-systolic lines; --sketch draws them in text', async () => {
+    const { mkdtempSync, readFileSync, rmSync } = await import('node:fs');
+    const { tmpdir } = await import('node:os');
+    const dir = mkdtempSync(join(tmpdir(), 'elastimate-loops-'));
+    try {
+      const svg = join(dir, 'loops.svg');
+      const run = ok(await runCli(['scenario', '--input', VISIT, '--contractility', '25', '--svg', svg, '--sketch']));
+      const text = readFileSync(svg, 'utf8');
+      expect(text.match(/data-series="loop"/g)).toHaveLength(2);
+      expect(text.match(/data-series="espvr"/g)).toHaveLength(2);
+      expect(run.stdout).toMatch(/o model baseline\s+\* projection/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
+
 describe('elastimate scenario: bad input to every new flag, one message and exit 2', () => {
   it.each([
     ['--to-hr', 'fast', '--to-hr'],
@@ -106,6 +124,7 @@ describe('elastimate scenario: bad input to every new flag, one message and exit
     ['--shape', 'hill-c', '--shape'],
     ['--draws', '10', '--draws'],
     ['--seed', '-1', '--seed'],
+    ['--svg', 'loops.png', '--svg'],
   ])('%s %s', async (flag, value, field) => {
     expectRefusal(await runCli(['scenario', '--input', VISIT, flag, value]), field, value);
   });
