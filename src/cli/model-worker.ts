@@ -6,7 +6,7 @@
  */
 import { parentPort } from 'node:worker_threads';
 import { scenarioChunk, type ChunkRequest } from '../model/scenario-intervals.js';
-import { syntheticChunk, type SyntheticRow } from '../model/synthetic.js';
+import { syntheticChunk, type NearTarget, type SyntheticRow } from '../model/synthetic.js';
 import type { ElastanceShape } from '../model/double-hill.js';
 
 export interface SyntheticRequest {
@@ -14,12 +14,13 @@ export interface SyntheticRequest {
   chunk: number;
   count: number;
   shapes: ElastanceShape[];
+  near?: NearTarget;
 }
 
 export type WorkerJob = { kind: 'scenario'; requests: ChunkRequest[] } | { kind: 'synthetic'; requests: SyntheticRequest[] };
 
 export function runSyntheticRequest(r: SyntheticRequest): SyntheticRow[] {
-  return syntheticChunk(r.seed, r.chunk, r.count, r.shapes);
+  return syntheticChunk(r.seed, r.chunk, r.count, r.shapes, true, r.near);
 }
 
 const port = parentPort;

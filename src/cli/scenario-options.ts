@@ -40,6 +40,8 @@ export function registerSyntheticCommand(program: Command): void {
     .option('--csv', 'print one row per virtual adult and shape as CSV (the summary goes to stderr)')
     .option('--json', 'print one JSON object: subjects and summary (docs/model.md)')
     .option('--svg <file>', 'also write the Bland–Altman plot as SVG')
+    .option('--near <file>', 'keep only hearts whose simulated observations are near this visit (a visit file, or a subject file)')
+    .option('--visit <visit>', 'with --near and a subject file: visit number or date; default the last visit')
     .action(async (opts: Record<string, unknown>) => {
       const { runSynthetic } = await import('./synthetic-command.js');
       await runSynthetic(opts);

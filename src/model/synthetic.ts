@@ -81,10 +81,33 @@ function uniform(rng: RandomGenerator, [lo, hi]: readonly [number, number]): num
   return lo + u * (hi - lo);
 }
 
-/** One virtual heart from a stream. */
-export function drawHeart(rng: RandomGenerator): VirtualHeart {
+/** What was observed at one visit, for `--near`: the hearts kept are those whose simulated observations fall within NEAR_WINDOWS of these. */
+export interface NearTarget {
+  ef: number;
+  sbp: number;
+  dbp: number;
+  hr: number;
+  edv: number;
+  tNd: number;
+}
+
+/**
+ * Windows of `--near` (chosen here, stated in docs/model.md): about the
+ * measurement error of each observation (method-notes §9), never the fitted
+ * Ees, which would be circular.
+ */
+export const NEAR_WINDOWS = { ef: 5, sbp: 10, dbp: 8, hr: 8, edvFraction: 0.15, tNd: 0.03 } as const;
+
+export function isNear(o: NonNullable<SyntheticRow['observed']>, tNd: number | null, t: NearTarget): boolean {
+  const w = NEAR_WINDOWS;
+  return Math.abs(o.ef - t.ef) <= w.ef && Math.abs(o.sbp - t.sbp) <= w.sbp && Math.abs(o.dbp - t.dbp) <= w.dbp && Math.abs(o.hr - t.hr) <= w.hr &&
+    Math.abs(o.edv / t.edv - 1) <= w.edvFraction && tNd !== null && Math.abs(tNd - t.tNd) <= w.tNd;
+}
+
+/** One virtual heart from a stream; with a target, heart rate and EDV (observed directly) are drawn within its windows, the rest as widely as ever. */
+export function drawHeart(rng: RandomGenerator, near?: NearTarget): VirtualHeart {
   const r = VIRTUAL_RANGES;
-  const hr = uniform(rng, r.hr);
+  const hr = near ? uniform(rng, [near.hr - NEAR_WINDOWS.hr, near.hr + NEAR_WINDOWS.hr]) : uniform(rng, r.hr);
   const resistance = uniform(rng, r.resistance);
   const heart = {
     emax: uniform(rng, r.emax),
@@ -93,7 +116,7 @@ export function drawHeart(rng: RandomGenerator): VirtualHeart {
     compliance: uniform(rng, r.compliance),
     zc: resistance * uniform(rng, r.zcFraction),
     hr,
-    edv: uniform(rng, r.edv),
+    edv: near ? uniform(rng, [near.edv * (1 - NEAR_WINDOWS.edvFraction), near.edv * (1 + NEAR_WINDOWS.edvFraction)]) : uniform(rng, r.edv),
     edp: uniform(rng, r.edp),
     // Weissler 1968, men (systolic-intervals.ts), scaled per heart.
     pep: (131 - 0.4 * hr) * uniform(rng, r.timingFactor),
@@ -153,13 +176,22 @@ export const SYNTHETIC_CHUNK = 25;
 export const OUTSIDE_INPUTS = 'the simulated observations fall outside the accepted inputs';
 
 /** Rows of chunk `chunk` (subjects chunk·25 … ), for every shape, from stream `chunk` of the seed. */
-export function syntheticChunk(seed: number, chunk: number, count: number, shapes: readonly ElastanceShape[], occlude = true): SyntheticRow[] {
+export function syntheticChunk(seed: number, chunk: number, count: number, shapes: readonly ElastanceShape[], occlude = true, near?: NearTarget): SyntheticRow[] {
   const rng = randomStreams(seed, 1, chunk)[0]!;
   const rows: SyntheticRow[] = [];
   for (let i = 0; i < count; i++) {
-    const h = drawHeart(rng);
+    const h = drawHeart(rng, near);
     const id = chunk * SYNTHETIC_CHUNK + i + 1;
-    for (const shape of shapes) rows.push(syntheticRow(id, h, shape, occlude));
+    for (const shape of shapes) {
+      if (!near) {
+        rows.push(syntheticRow(id, h, shape, occlude));
+        continue;
+      }
+      // Near a subject: simulate and observe first; the occlusion only for the hearts kept.
+      const row = syntheticRow(id, h, shape, false);
+      if (row.observed === null || !isNear(row.observed, row.tNd, near)) continue;
+      rows.push(occlude ? syntheticRow(id, h, shape, true) : row);
+    }
   }
   return rows;
 }

@@ -3,7 +3,7 @@
  * JSON, a summary in words and a Bland–Altman SVG. Pure.
  */
 import { DOUBLE_HILL_SETS, type ElastanceShape } from '../model/double-hill.js';
-import type { AgreementSummary, SyntheticRow } from '../model/synthetic.js';
+import type { AgreementSummary, NEAR_WINDOWS, NearTarget, SyntheticRow } from '../model/synthetic.js';
 import { csvNumber, csvText } from './csv.js';
 import { formatNumber } from './format.js';
 import { wrap } from './terminal.js';
@@ -14,6 +14,8 @@ export interface CohortSummary {
   shapes: ElastanceShape[];
   /** per shape: estimated Ees against the model's Emax, and against the virtual occlusion */
   byShape: Partial<Record<ElastanceShape, { againstEmax: AgreementSummary; againstOcclusion: AgreementSummary }>>;
+  /** with --near: what was observed, the windows, and how many hearts were drawn */
+  near?: { target: NearTarget; windows: typeof NEAR_WINDOWS; drawn: number };
 }
 
 export const COHORT_NOTE =
@@ -44,7 +46,7 @@ export function syntheticJson(rows: readonly SyntheticRow[], summary: CohortSumm
       id: r.id, shape: r.shape, trueEes: r.trueEes, occlusionEes: r.occlusionEes, estimatedEes: r.estimatedEes, tNd: r.tNd, ea: r.ea, eaEes: r.eaEes,
       observed: r.observed, heart: r.heart, ...(r.reason ? { reason: r.reason } : {}),
     })),
-    summary: { shape: summary.shapes.includes('hill-b') ? 'hill-b' : summary.shapes[0], ...main.againstEmax, seed: summary.seed, byShape: summary.byShape },
+    summary: { shape: summary.shapes.includes('hill-b') ? 'hill-b' : summary.shapes[0], ...main.againstEmax, seed: summary.seed, byShape: summary.byShape, ...(summary.near ? { near: summary.near } : {}) },
     note: COHORT_NOTE,
   };
 }
@@ -57,6 +59,11 @@ function agreementWords(a: AgreementSummary): string {
 
 export function syntheticSummaryText(s: CohortSummary, width = 100): string {
   const out: string[] = [`Virtual cohort: ${s.n} adults, seed ${s.seed} (docs/model.md).`];
+  if (s.near) {
+    const t = s.near.target;
+    const w = s.near.windows;
+    out.push(...wrap(`Near one subject: of ${s.near.drawn} hearts drawn (heart rate and EDV within the windows, everything else as widely as ever), only those whose simulated observations fall within EF ${formatNumber(t.ef, 0)} ± ${w.ef} points, SBP ${formatNumber(t.sbp, 0)} ± ${w.sbp} and DBP ${formatNumber(t.dbp, 0)} ± ${w.dbp} mmHg, heart rate ${formatNumber(t.hr, 0)} ± ${w.hr} bpm, EDV ${formatNumber(t.edv, 0)} mL ± ${100 * w.edvFraction} % and tNd ${formatNumber(t.tNd, 3)} ± ${w.tNd} are kept; chosen by what was observed, never by the fitted Ees.`, width));
+  }
   for (const shape of s.shapes) {
     const b = s.byShape[shape]!;
     out.push('');

@@ -51,10 +51,12 @@ describe('elastimate synthetic (known truth for the single-beat method; Bland & 
     ['--n', 'many'],
     ['--shape', 'hill-z'],
     ['--seed', 'x'],
+    ['--near', 'no-such-visit.json'],
   ])('bad input %s %s: one message, exit 2', async (flag, value) => {
     const run = await runCli(['synthetic', flag, value]);
     expect(run.code).toBe(2);
-    expect(run.stderr).toMatch(new RegExp(`^elastimate: ${flag.replace(/-/g, '\\-')}: got "${value}"; accepted: `));
+    expect(run.stderr).toMatch(new RegExp(`^elastimate: [^:]+: got "${value}"; `));
+    expect(run.stderr).toContain('accepted: ');
     expect(run.stderr).not.toMatch(STACK_FRAME);
     expect(run.stdout).toBe('');
   });

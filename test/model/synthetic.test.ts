@@ -58,3 +58,31 @@ describe('the cohort summary is computed from the rows (Bland & Altman, Lancet 1
     expect(syntheticChunk(11, 0, 25, ['hill-b'])).toEqual(rows);
   });
 });
+
+describe('--near: hearts chosen by what was observed (consistency of the filter, not an outside check)', () => {
+  const target = { ef: 60, sbp: 125, dbp: 75, hr: 70, edv: 120, tNd: 0.27 };
+  const inside = { edv: 125, esv: 50, ef: 60, sbp: 130, dbp: 78, hr: 74, pep: 90, et: 260 };
+  it('a heart inside every window is kept; one outside any single window is not', async () => {
+    const { isNear, NEAR_WINDOWS } = await import('../../src/model/synthetic.js');
+    expect(isNear(inside, 0.27, target)).toBe(true);
+    expect(isNear({ ...inside, ef: target.ef + NEAR_WINDOWS.ef + 0.1 }, 0.27, target)).toBe(false);
+    expect(isNear({ ...inside, sbp: target.sbp - NEAR_WINDOWS.sbp - 0.1 }, 0.27, target)).toBe(false);
+    expect(isNear({ ...inside, dbp: target.dbp + NEAR_WINDOWS.dbp + 0.1 }, 0.27, target)).toBe(false);
+    expect(isNear({ ...inside, hr: target.hr + NEAR_WINDOWS.hr + 0.1 }, 0.27, target)).toBe(false);
+    expect(isNear({ ...inside, edv: target.edv * (1 + NEAR_WINDOWS.edvFraction) + 0.1 }, 0.27, target)).toBe(false);
+    expect(isNear(inside, target.tNd + NEAR_WINDOWS.tNd + 0.001, target)).toBe(false);
+    expect(isNear(inside, null, target)).toBe(false);
+  });
+  it('heart rate and EDV are drawn within their windows; Emax as widely as without a target', () => {
+    const rng = randomStreams(5, 1)[0]!;
+    const emax: number[] = [];
+    for (let i = 0; i < 200; i++) {
+      const h = drawHeart(rng, target);
+      expect(Math.abs(h.hr - target.hr)).toBeLessThanOrEqual(8);
+      expect(Math.abs(h.edv / target.edv - 1)).toBeLessThanOrEqual(0.15);
+      emax.push(h.emax);
+    }
+    expect(Math.min(...emax)).toBeLessThan(1);
+    expect(Math.max(...emax)).toBeGreaterThan(4.5);
+  });
+});
