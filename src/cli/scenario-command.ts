@@ -109,8 +109,10 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   const wantsIntervals = opts.intervals === true || opts.draws !== undefined || opts.seed !== undefined;
   const draws = opts.draws !== undefined ? drawsFromOption(opts.draws) : INTERVAL_DRAWS.default;
   const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
-  const files = opts.svg !== undefined ? await import('./output-files.js') : null;
-  const svgPath = files ? files.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect: [inputFile, opts.subject].filter((p): p is string => typeof p === 'string') }) : null;
+  const files = opts.svg !== undefined || opts.report !== undefined ? await import('./output-files.js') : null;
+  const protect = [inputFile, opts.subject].filter((p): p is string => typeof p === 'string');
+  const svgPath = files && opts.svg !== undefined ? files.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect }) : null;
+  const reportPath = files && opts.report !== undefined ? files.checkOutputPath(opts.report, { option: '--report', extensions: ['.html'], protect: svgPath ? [...protect, svgPath] : protect }) : null;
   const a = await visitAssessment(opts, inputFile);
   const result = runScenario(a, changes, shape);
   const loops = result.loops && result.fit.parameters && result.projected?.ees != null
@@ -121,7 +123,7 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
         projectedLine: { ees: result.projected.ees, v0: result.fit.parameters.v0 },
       }
     : null;
-  const drawing = loops && (svgPath || opts.sketch === true) ? await import('../render/model-loops.js') : null;
+  const drawing = loops && (svgPath || reportPath || opts.sketch === true) ? await import('../render/model-loops.js') : null;
   if (files && svgPath && drawing && loops) await files.writeTextAtomically(svgPath, drawing.renderModelLoopsSvg(loops), '--svg');
   let intervals: ScenarioIntervals | undefined;
   if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
@@ -132,6 +134,11 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
     intervals = mergeChunks(results, draws, seed, quantileInPlace);
   }
   const view = await import('../render/scenario.js');
+  if (files && reportPath) {
+    const { toolVersion } = await import('./package-info.js');
+    const html = view.scenarioHtml(result, { ...(intervals ? { intervals } : {}), loopsSvg: drawing && loops ? drawing.renderModelLoopsSvg(loops) : null, generated: new Date().toISOString().slice(0, 10), toolVersion: toolVersion() });
+    await files.writeTextAtomically(reportPath, html, '--report');
+  }
   if (opts.json === true) {
     const [{ stringifySafe }, { toolVersion }] = await Promise.all([import('../render/json.js'), import('./package-info.js')]);
     process.stdout.write(stringifySafe(view.scenarioToJson(result, toolVersion(), intervals)) + '\n');

@@ -24,6 +24,7 @@ export function registerScenarioCommand(program: Command, inputFileOf: (cmd: Com
     .option('--json', 'print one JSON object (docs/model.md)')
     .option('--svg <file>', 'also write the simulated baseline and projected loops as SVG')
     .option('--sketch', 'also print a compact text drawing of the simulated loops')
+    .option('--report <file>', 'also write the projection as one self-contained HTML page (table, loops, cautions)')
     .action(async (opts: Record<string, unknown>, cmd: Command) => {
       const { runScenarioCommand } = await import('./scenario-command.js');
       await runScenarioCommand(opts, inputFileOf(cmd));

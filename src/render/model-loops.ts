@@ -16,7 +16,8 @@ export interface ModelLoops {
   projectedLine: { ees: number; v0: number } | null;
 }
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
+/** Text for SVG and HTML: the markup characters escaped. */
+export const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
 function extents(l: ModelLoops): { vMax: number; pMax: number; vTicks: number[]; pTicks: number[] } {
   const all = [...l.baseline, ...l.projected];

@@ -8,6 +8,7 @@ import { SCENARIO_CAUTIONS, SCENARIO_LABELS, type ScenarioResult } from '../mode
 import { SCENARIO_KEYS, SCENARIO_UNITS, type ScenarioKey, type ScenarioValues } from '../model/project.js';
 import { FAILURE_KINDS, type ScenarioIntervals } from '../model/scenario-intervals.js';
 import { formatNumber, pad, padLeft } from './format.js';
+import { esc } from './model-loops.js';
 import { plainStyle, type Style } from './style.js';
 import { wrap } from './terminal.js';
 
@@ -99,4 +100,40 @@ export function renderScenario(r: ScenarioResult, options: { style?: Style; inte
 
 function pct(r: number): string {
   return `${r >= 0 ? '+' : '−'}${formatNumber(Math.abs(100 * r), 2)} %`;
+}
+
+/** The projection as one self-contained HTML page: the table, the simulated loops (inline SVG) and the cautions. */
+export function scenarioHtml(r: ScenarioResult, options: { intervals?: ScenarioIntervals; loopsSvg?: string | null; generated: string; toolVersion: string }): string {
+  const iv = options.intervals;
+  const rows = SCENARIO_KEYS.map((k) => {
+    const ci = iv?.interval95[k];
+    const range = iv ? `<td>${ci ? `${esc(cell(ci[0], k))} – ${esc(cell(ci[1], k))}` : '—'}</td>` : '';
+    return `<tr><th scope="row">${esc(SCENARIO_LABELS[k])}</th><td>${esc(cell(r.measured[k], k))}</td><td>${esc(cell(r.baseline?.[k], k))}</td><td>${esc(cell(r.projected?.[k], k))}</td>${range}<td>${esc(SCENARIO_UNITS[k])}</td></tr>`;
+  });
+  // The terminal text's Fit and Changes paragraphs, reused so both views say the same.
+  const text = renderScenario(r, iv ? { intervals: iv, width: 120 } : { width: 120 });
+  const section = (title: string) => {
+    const m = new RegExp(`\\n${title}\\n([\\s\\S]*?)\\n\\n`).exec(text);
+    return m ? m[1]!.split('\n').map((l) => l.trim()).join(' ') : '';
+  };
+  return [
+    '<!doctype html>',
+    '<html lang="en"><head><meta charset="utf-8"><title>elastimate scenario</title>',
+    '<style>body{font-family:Helvetica,Arial,sans-serif;max-width:52rem;margin:2rem auto;color:#1a1a1a;line-height:1.4}table{border-collapse:collapse}td,th{padding:.2rem .6rem;border-bottom:1px solid #ddd;text-align:right}th[scope=row]{text-align:left;font-weight:normal}.caution{color:#555}</style>',
+    '</head><body>',
+    `<h1>A model of this subject's ventricle and arteries</h1>`,
+    `<p class="caution">Research use only, not a diagnosis. Generated ${esc(options.generated)} by elastimate ${esc(options.toolVersion)}.</p>`,
+    `<h2>Changes</h2><p>${esc(section('Changes'))}</p>`,
+    `<h2>Fit</h2><p>${esc(section('Fit'))}</p>`,
+    ...(r.notes.length ? [`<ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join('')}</ul>`] : []),
+    '<h2>Side by side</h2>',
+    `<table><thead><tr><th></th><th>measured</th><th>model</th><th>projected</th>${iv ? '<th>95 % interval</th>' : ''}<th>unit</th></tr></thead><tbody>${rows.join('')}</tbody></table>`,
+    ...(r.projectionReason ? [`<p>No projection: ${esc(r.projectionReason)}.</p>`] : []),
+    ...(iv ? [`<p>${esc(section('Side by side').replace(/^[\s\S]*?(Intervals:)/, '$1'))}</p>`] : []),
+    ...(options.loopsSvg ? ['<h2>Simulated loops</h2>', options.loopsSvg] : []),
+    '<h2>Cautions</h2>',
+    `<ul class="caution">${[...SCENARIO_CAUTIONS, ...STANDING_CAVEATS].map((c) => `<li>${esc(c)}</li>`).join('')}</ul>`,
+    '</body></html>',
+    '',
+  ].join('\n');
 }

@@ -107,6 +107,13 @@ describe('elastimate scenario: the simulated loops overlaid', () => {
       expect(text.match(/data-series="loop"/g)).toHaveLength(2);
       expect(text.match(/data-series="espvr"/g)).toHaveLength(2);
       expect(run.stdout).toMatch(/o model baseline\s+\* projection/);
+      const report = join(dir, 'what-if.html');
+      ok(await runCli(['scenario', '--input', VISIT, '--to-hr', '80', '--report', report, '--json']));
+      const html = readFileSync(report, 'utf8');
+      expect(html.match(/<tr><th scope="row">/g)).toHaveLength(14);
+      expect(html.match(/data-series="loop"/g)).toHaveLength(2);
+      expect(html).toMatch(/not a prediction/);
+      expect(html).toMatch(/heart rate to 80 bpm/);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
@@ -125,6 +132,7 @@ describe('elastimate scenario: bad input to every new flag, one message and exit
     ['--draws', '10', '--draws'],
     ['--seed', '-1', '--seed'],
     ['--svg', 'loops.png', '--svg'],
+    ['--report', 'what-if.pdf', '--report'],
   ])('%s %s', async (flag, value, field) => {
     expectRefusal(await runCli(['scenario', '--input', VISIT, flag, value]), field, value);
   });
