@@ -85,8 +85,12 @@ export function runScenario(a: Assessment, changes: ScenarioChanges, shape: Elas
   const baselineRun = projectBeat(m, timing, {}, fit.state, true);
   const projectedRun = projectBeat(m, timing, changes, fit.state, true);
   const baseline = baselineRun.ok ? beatValues(baselineRun.beat, baselineRun.model) : beatValues(fit.beat, m);
+  const notes = [
+    ...setup.notes,
+    'Measured Pes is the cuff estimate the assessment uses; the model\'s Pes is its aortic pressure at aortic valve closure, so the two need not agree even when SBP and DBP are fitted.',
+  ];
   const result: ScenarioResult = {
-    ...base, fit: scenarioFit, baseline, projected: null, notes: setup.notes, fitted: fit, timing,
+    ...base, fit: scenarioFit, baseline, projected: null, notes, fitted: fit, timing,
   };
   if (!projectedRun.ok) {
     result.projectionReason = projectedRun.reason;

@@ -42,3 +42,18 @@ describe('small linear solver (checked against mathjs lusolve)', () => {
     expect(solveLinear([[1, 2], [2, 4]], [1, 2])).toBeNull();
   });
 });
+
+describe("Aitken's Δ² extrapolation of the beat-to-beat approach (Aitken 1926)", () => {
+  it('a geometric sequence s_n = L + c·λⁿ is extrapolated to its limit L exactly', async () => {
+    const { accelerate } = await import('../../src/model/beat.js');
+    const seq = (n: number) => ({ volume: 120 + 8 * 0.6 ** n, compliancePressure: 80 - 12 * 0.8 ** n });
+    const s = accelerate(seq(1), seq(2), seq(3));
+    expect(s.volume).toBeCloseTo(120, 10);
+    expect(s.compliancePressure).toBeCloseTo(80, 10);
+  });
+  it('an oscillating or diverging sequence is left alone (the last state is kept)', async () => {
+    const { accelerate } = await import('../../src/model/beat.js');
+    const s = accelerate({ volume: 100, compliancePressure: 80 }, { volume: 110, compliancePressure: 70 }, { volume: 105, compliancePressure: 50 });
+    expect(s).toEqual({ volume: 105, compliancePressure: 50 });
+  });
+});
