@@ -4,7 +4,7 @@
  */
 import { caveatsFor, referralNote } from './caveats.js';
 import { checkVisit } from './checks.js';
-import { PES_METHOD_LABEL, computeResults, defaultChoice, dopplerStrokeVolume, endSystolicPressure, type MethodChoice, type Results, type StrokeVolumeSource } from './compute.js';
+import { PES_METHOD_LABEL, computeResults, defaultChoice, hasDopplerStrokeVolume, type MethodChoice, type Results, type StrokeVolumeSource } from './graph/index.js';
 import { PES_METHODS, type PesMethod } from './fields.js';
 import type { VisitInputs } from './inputs.js';
 import { visitMechanics, type Mechanics } from './mechanics.js';
@@ -15,7 +15,8 @@ export interface MethodVariant {
   pesLabel: string;
   strokeVolumeSource: StrokeVolumeSource | 'none';
   pes: number | null;
-  sv: number | null;
+  /** The stroke volume this variant used. */
+  svUsed: number | null;
   ea: number | null;
   ees: number | null;
   eesMethod: 'single-beat' | 'Pes/ESV';
@@ -53,14 +54,14 @@ export function assess(inputs: VisitInputs): Assessment {
     caveats: caveatsFor(flags),
     referral: referralNote(inputs, results, flags),
     variants: methodVariants(inputs, choice),
-    pesEstimates: PES_METHODS.map((m) => ({ method: m, label: PES_METHOD_LABEL[m], value: endSystolicPressure(inputs, m) })),
+    pesEstimates: PES_METHODS.map((m) => ({ method: m, label: PES_METHOD_LABEL[m], value: m === choice.pesMethod ? results.pes.value : computeResults(inputs, { ...choice, pesMethod: m }).pes.value })),
     mechanics: visitMechanics(inputs, results),
   };
 }
 
 /** Pes estimates × SV sources, each with single-beat Ees, plus the crude Pes/ESV row. */
 export function methodVariants(inputs: VisitInputs, main: MethodChoice = defaultChoice(inputs)): MethodVariant[] {
-  const sources: StrokeVolumeSource[] = dopplerStrokeVolume(inputs) ? ['doppler', 'volumetric'] : ['volumetric'];
+  const sources: StrokeVolumeSource[] = hasDopplerStrokeVolume(inputs) ? ['doppler', 'volumetric'] : ['volumetric'];
   const rows: MethodVariant[] = [];
   for (const pesMethod of PES_METHODS) {
     if (pesMethod === 'measured' && inputs.pesMeasured === null) continue;
@@ -89,7 +90,7 @@ function row(pesMethod: PesMethod, source: StrokeVolumeSource, r: Results, eesMe
     pesLabel: PES_METHOD_LABEL[pesMethod],
     strokeVolumeSource: source,
     pes: r.pes.value,
-    sv: r.sv.value,
+    svUsed: r.svUsed.value,
     ea: r.ea.value,
     ees: r.ees.value,
     eesMethod,

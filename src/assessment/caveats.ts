@@ -2,7 +2,7 @@
  * The cautions printed with every result, and the referral note. Pure text
  * built from the assessment; every view (terminal, JSON, HTML) shows them.
  */
-import type { Results } from './compute.js';
+import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
 import type { Flag } from './result.js';
 
@@ -26,7 +26,7 @@ export function referralNote(inputs: VisitInputs, r: Results, flags: readonly Fl
   const parts: string[] = [];
   parts.push(
     `Research echocardiography and cuff blood pressure (${inputs.sbp.toFixed(0)}/${inputs.dbp.toFixed(0)} mmHg` +
-      `${inputs.hr !== null ? `, heart rate ${inputs.hr.toFixed(0)} bpm` : ''}) give EF ${fmt(r.ef.value, 0, '%')}, ` +
+      `${inputs.hr !== null ? `, heart rate ${inputs.hr.toFixed(0)} bpm` : ''}) give EF ${fmt(r.efUsed.value, 0, '%')}, ` +
       `estimated end-systolic pressure ${fmt(r.pes.value, 0, 'mmHg')}, arterial elastance (Ea) ${fmt(r.ea.value, 2, 'mmHg/mL')}, ` +
       `single-beat end-systolic elastance (Ees) ${fmt(r.ees.value, 2, 'mmHg/mL')} and Ea/Ees ${fmt(r.eaEes.value, 2)}.`,
   );

@@ -4,7 +4,7 @@
  */
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 import { TND_TYPICAL } from '../physiology/normalized-elastance.js';
-import type { Results } from './compute.js';
+import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
 import type { Flag } from './result.js';
 
@@ -56,7 +56,7 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
   }
 
   const tNd = r.tNd.value;
-  if (tNd !== null && r.endAvg.value !== null && (tNd < TND_TYPICAL.low || tNd > TND_TYPICAL.high)) {
+  if (tNd !== null && r.normalizedElastanceAvg.value !== null && (tNd < TND_TYPICAL.low || tNd > TND_TYPICAL.high)) {
     add('tnd-window', 'caution', m ? `tNd ${tNd.toFixed(3)} lies outside ${TND_TYPICAL.low}–${TND_TYPICAL.high}, the usual adult range; check PEP and ET before trusting Ees.` : '');
   }
   if (r.ees.value === null) {
@@ -90,8 +90,8 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
 
   // Findings that warrant clinical attention under common thresholds.
   const efLimit = THRESHOLDS.efLowerNormal[inputs.sex ?? 'unknown'];
-  if (r.ef.value !== null && r.ef.value < efLimit) {
-    add('ef-low', 'attention', m ? `EF ${r.ef.value.toFixed(0)} % is below the normal range (lower limit about ${efLimit} %${inputs.sex ? ' for ' + (inputs.sex === 'male' ? 'men' : 'women') : ''}, ASE/EACVI 2015).` : '');
+  if (r.efUsed.value !== null && r.efUsed.value < efLimit) {
+    add('ef-low', 'attention', m ? `EF ${r.efUsed.value.toFixed(0)} % is below the normal range (lower limit about ${efLimit} %${inputs.sex ? ' for ' + (inputs.sex === 'male' ? 'men' : 'women') : ''}, ASE/EACVI 2015).` : '');
   }
   if (inputs.sbp > THRESHOLDS.severeSystolic || inputs.dbp > THRESHOLDS.severeDiastolic) {
     add('bp-severe', 'attention', m ? `Blood pressure ${inputs.sbp.toFixed(0)}/${inputs.dbp.toFixed(0)} mmHg is severely elevated (above ${THRESHOLDS.severeSystolic} systolic or above ${THRESHOLDS.severeDiastolic} diastolic, ACC/AHA 2017).` : '');

@@ -15,14 +15,14 @@
  */
 import { InputError, showValue } from '../errors.js';
 import { toInternalUnit } from '../units/quantity.js';
-import { fieldByKey, type NumericKey } from './fields.js';
+import { fieldByKey } from './fields.js';
+import { visitPlan } from './graph/index.js';
+import { GRAPH_INPUT_KEYS, type GraphInputKey } from './graph/inputs.js';
 import type { VisitInputs } from './inputs.js';
 
-/** The inputs whose error reaches a result (age, E/e′, EDP and wall dimensions feed no result here). */
-export const ERROR_INPUT_KEYS = [
-  'sbp', 'dbp', 'hr', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'pesMeasured', 'height', 'weight',
-] as const satisfies readonly NumericKey[];
-export type ErrorInputKey = (typeof ERROR_INPUT_KEYS)[number];
+/** The inputs whose error can reach a result: those the graph of quantities reads (age, E/e′, EDP and wall dimensions feed none). */
+export const ERROR_INPUT_KEYS = GRAPH_INPUT_KEYS;
+export type ErrorInputKey = GraphInputKey;
 
 export interface DefaultError {
   /** 'absolute': SD in the input's unit; 'relative': SD as a fraction of the value. */
@@ -202,26 +202,21 @@ export function validateErrorOverrides(errors: Readonly<Record<string, string | 
   if (problems.length) throw new InputError(problems);
 }
 
-/** The inputs of this visit that reach a result, with their values as used. */
+/**
+ * The inputs of this visit that reach a result, with their values as used:
+ * those a computable result is computed from under the visit's own method
+ * choices (the graph's edges), in the graph's input order.
+ */
 export function inputsInUse(inputs: VisitInputs): { input: ErrorInputKey; value: number }[] {
-  const used: { input: ErrorInputKey; value: number }[] = [
-    { input: 'sbp', value: inputs.sbp },
-    { input: 'dbp', value: inputs.dbp },
-  ];
-  if (inputs.hr !== null) used.push({ input: 'hr', value: inputs.hr });
-  used.push({ input: 'edv', value: inputs.edv }, { input: 'esv', value: inputs.esv });
-  if (inputs.ef !== null) used.push({ input: 'ef', value: inputs.ef });
-  // Doppler SV: a value entered directly wins over LVOT diameter and VTI (as in compute.ts).
-  if (inputs.sv !== null) used.push({ input: 'sv', value: inputs.sv });
-  else if (inputs.lvotDiameter !== null && inputs.lvotVti !== null) {
-    used.push({ input: 'lvotDiameter', value: inputs.lvotDiameter }, { input: 'lvotVti', value: inputs.lvotVti });
-  }
-  used.push({ input: 'pep', value: inputs.pep }, { input: 'et', value: inputs.et });
-  if (inputs.pesMeasured !== null && inputs.pesMethod === 'measured') used.push({ input: 'pesMeasured', value: inputs.pesMeasured });
-  if (inputs.height !== null && inputs.weight !== null) {
-    used.push({ input: 'height', value: inputs.height }, { input: 'weight', value: inputs.weight });
-  }
-  return used;
+  const plan = visitPlan(inputs);
+  const used = new Set<number>();
+  for (const p of plan.order) for (const a of p.args) used.add(a);
+  const list: { input: ErrorInputKey; value: number }[] = [];
+  ERROR_INPUT_KEYS.forEach((input, slot) => {
+    const value = inputs[input];
+    if (used.has(slot) && value !== null) list.push({ input, value });
+  });
+  return list;
 }
 
 function formatSd(v: number): string {

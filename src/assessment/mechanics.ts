@@ -11,7 +11,7 @@ import {
 } from '../physiology/energetics.js';
 import { FILLING_PRESSURE_METHOD, fillingPressureFromEOverEPrime } from '../physiology/filling-pressure.js';
 import { wallStressMeridional, wallStressThinWall } from '../physiology/wall-stress.js';
-import type { Results } from './compute.js';
+import type { Results } from './graph/index.js';
 import type { VisitInputs } from './inputs.js';
 import { quantity, type Quantity } from './result.js';
 
@@ -127,7 +127,7 @@ function wallStress(inputs: VisitInputs): WallStress {
 
 function energetics(r: Results, esv: number): Energetics {
   const pes = r.pes.value;
-  const sv = r.sv.value;
+  const sv = r.svUsed.value;
   const v0 = r.v0.value;
   const swValue = pes !== null && sv !== null ? strokeWork(pes, sv) : null;
   const sw = quantity(swValue, 'mmHg·mL', 'Pes × SV (elastance model, rectangle)', r.pes.reason ?? 'needs Pes and SV');

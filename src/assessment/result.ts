@@ -4,7 +4,8 @@ export interface Quantity {
   unit: string;
   method?: string;
   reason?: string;
-  ci95?: [number, number];
+  /** 95 % interval from the Monte Carlo propagation, when it was run. */
+  interval95?: [number, number];
 }
 
 export type FlagLevel = 'note' | 'caution' | 'attention';

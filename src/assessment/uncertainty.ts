@@ -25,15 +25,13 @@
 import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
 import { InputError, showValue } from '../errors.js';
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
-import { woodUnitsToDyn } from '../physiology/peripheral-resistance.js';
 import type { Assessment } from './assess.js';
-import { RESULT_KEYS, computeResults, defaultChoice, type MethodChoice, type ResultKey, type Results } from './compute.js';
-import { errorModelFor, type ErrorInputKey, type ErrorModel, type InputErrorSpec } from './error-model.js';
+import { ERROR_INPUT_KEYS, errorModelFor, type ErrorInputKey, type ErrorModel, type InputErrorSpec } from './error-model.js';
+import { compileDraws } from './graph/draws.js';
+import { RESULT_KEYS, computeResults, defaultChoice, visitPlan, type MethodChoice, type Plan, type ResultKey, type Results } from './graph/index.js';
+import { SLOT_COUNT as GRAPH_SLOTS, evaluatePlan, inputVector, inputsOf, isInputSlot, keyOfSlot, slotOf } from './graph/plan.js';
 import type { VisitInputs } from './inputs.js';
-import {
-  DRAW_INADMISSIBLE, DRAW_OK, DRAW_TND_OUTSIDE, OUTPUT_COUNT, OUTPUT_INDEX, SLOT, SLOT_COUNT,
-  evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, randomStreams, sampleVariance, summarize, type KernelSetup,
-} from './monte-carlo.js';
+import { fillNormals, interval95, randomStreams, sampleVariance, summarize } from './monte-carlo.js';
 
 export const UNCERTAINTY_DEFAULTS = { draws: 20_000, seed: 1 } as const;
 export const DRAWS_RANGE = { min: 1_000, max: 500_000 } as const;
@@ -55,10 +53,13 @@ export const CHEN_CALIBRATION = {
 
 const GENERATOR = 'xoroshiro128+ (pure-rand), one stream per input by jump; normal deviates by the Marsaglia polar method';
 const CHUNK = 4096;
-/** Streams 0…SLOT_COUNT−1 belong to the inputs; this one to the method error. */
-const METHOD_STREAM = SLOT_COUNT;
+/** Random stream of each input: its position in the error model's (and the graph's) input order. */
+const STREAM = Object.fromEntries(ERROR_INPUT_KEYS.map((k, i) => [k, i])) as Record<ErrorInputKey, number>;
+const STREAM_COUNT = ERROR_INPUT_KEYS.length;
+/** Streams 0…STREAM_COUNT−1 belong to the inputs; this one to the method error. */
+const METHOD_STREAM = STREAM_COUNT;
 /** Streams per visit; a second visit in a comparison starts after the first's. */
-const STREAMS_PER_VISIT = SLOT_COUNT + 1;
+const STREAMS_PER_VISIT = STREAM_COUNT + 1;
 
 export interface UncertaintyOptions {
   draws?: number;
@@ -99,7 +100,7 @@ export interface Spread {
   mean: number;
   sd: number;
   /** 2.5th and 97.5th percentiles over the computable draws. */
-  ci95: [number, number];
+  interval95: [number, number];
   /** Share of all draws in which this quantity was computable. */
   computableFraction: number;
 }
@@ -163,9 +164,9 @@ export interface UncertaintyReport {
 /** One simulated visit: per-key values per draw (NaN where not computable) and running sums. */
 interface Simulation {
   draws: number;
-  values: (Float32Array | null)[];
-  nominal: Float64Array;
-  status: Uint32Array;
+  values: Map<ResultKey, Float32Array>;
+  /** Draws in which Ees was lost, by the slot where it was lost (graph/draws.ts countLosses). */
+  eesLosses: Float64Array;
   above: number;
   ratioCount: number;
   aboveCombined: number;
@@ -176,20 +177,34 @@ interface Simulation {
   onlyEaEes: Float32Array | null;
 }
 
-interface Plan {
-  setup: KernelSetup;
-  nominalInputs: Float64Array;
-  active: { slot: number; sd: number }[];
-  nominalOutputs: Float64Array;
+/** A visit prepared for draws: its plan of the graph, the values at its inputs, and the inputs that carry an error. */
+interface RunPlan {
+  graph: Plan;
+  nominal: Float64Array;
+  active: { input: ErrorInputKey; stream: number; sd: number }[];
 }
 
-function planFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel): Plan {
-  const setup = kernelSetup(inputs, choice);
-  const nominalInputs = nominalVector(inputs);
-  const active = model.inputs.filter((e) => e.sd > 0).map((e) => ({ slot: SLOT[e.input], sd: e.sd }));
-  const nominalOutputs = new Float64Array(OUTPUT_COUNT);
-  evaluateDraw(setup, nominalInputs, nominalOutputs);
-  return { setup, nominalInputs, active, nominalOutputs };
+function runPlanFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel): RunPlan {
+  const graph = visitPlan(inputs, choice);
+  const nominal = inputVector(inputs);
+  evaluatePlan(graph, nominal, []);
+  const active = model.inputs.filter((e) => e.sd > 0).map((e) => ({ input: e.input, stream: STREAM[e.input], sd: e.sd }));
+  return { graph, nominal, active };
+}
+
+/** The outputs a run computes: the stored keys, and Ea, Ees and Ea/Ees for the coupling and the method error. */
+function wantedIn(keys: readonly ResultKey[]): ResultKey[] {
+  return [...keys, 'ea', 'ees', 'eaEes'];
+}
+
+/** Draws 0…n−1 of a column into a run's single-precision store from `start` (a loop: typed-array set across types is slower). */
+function copyInto(target: Float32Array, source: Float64Array, start: number, n: number): void {
+  for (let i = 0; i < n; i++) target[start + i] = source[i]!;
+}
+
+/** Fill a drawn input's column: its value plus SD times a standard normal deviate. */
+function drawInput(column: Float64Array, value: number, sd: number, z: Float64Array, n: number): void {
+  for (let i = 0; i < n; i++) column[i] = value + sd * z[i]!;
 }
 
 /**
@@ -198,110 +213,78 @@ function planFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel): 
  * invasive Ees with its own SEE deviate) and method-only (the main Ees with the
  * same deviate), so every interval comes from the same draws.
  */
-function simulate(plan: Plan, draws: number, streams: RandomGenerator[], keys: readonly number[], method: { ea: number | null; calibrated: number } | null): Simulation {
-  const { active, nominalOutputs } = plan;
-  const values: (Float32Array | null)[] = new Array<Float32Array | null>(OUTPUT_COUNT).fill(null);
-  for (const j of keys) values[j] = new Float32Array(draws);
+function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys: readonly ResultKey[], method: { ea: number | null; calibrated: number } | null): Simulation {
+  const { active, nominal } = plan;
+  const program = compileDraws(plan.graph, nominal, active.map((a) => a.input), wantedIn(keys), CHUNK);
+  const columns = active.map((a) => program.input(a.input));
+  const values = new Map<ResultKey, Float32Array>(keys.map((k) => [k, new Float32Array(draws)]));
+  const stored = [...values].map(([key, target]) => ({ target, source: program.output(key) }));
   const withMethodError = method !== null;
-  const run: RunState = {
-    plan,
-    x: Float64Array.from(plan.nominalInputs),
-    out: new Float64Array(OUTPUT_COUNT),
-    values,
-    stored: Int32Array.from(keys.filter((j) => values[j] !== null)),
-    status: new Uint32Array(4),
-    z: active.map(() => new Float64Array(CHUNK)),
-    slots: Int32Array.from(active, (a) => a.slot),
-    sds: Float64Array.from(active, (a) => a.sd),
-    w: new Float64Array(CHUNK),
+  const z = active.map(() => new Float64Array(CHUNK));
+  const w = new Float64Array(CHUNK);
+  const sim: Simulation = {
+    draws, values, eesLosses: new Float64Array(GRAPH_SLOTS), above: 0, ratioCount: 0, aboveCombined: 0, combinedCount: 0,
     combinedEes: withMethodError ? new Float32Array(draws) : null,
     combinedEaEes: withMethodError ? new Float32Array(draws) : null,
     onlyEes: withMethodError ? new Float32Array(draws) : null,
     onlyEaEes: withMethodError && method.ea !== null ? new Float32Array(draws) : null,
-    ea0: method?.ea ?? Number.NaN,
-    calibrated: method?.calibrated ?? Number.NaN,
-    counts: new Float64Array(4),
   };
+  const eaColumn = program.output('ea');
+  const eesColumn = program.output('ees');
+  const ratioColumn = program.output('eaEes');
   for (let start = 0; start < draws; start += CHUNK) {
     const n = Math.min(CHUNK, draws - start);
-    for (let a = 0; a < run.slots.length; a++) fillNormals(streams[run.slots[a]!]!, run.z[a]!, n);
-    if (withMethodError) fillNormals(streams[METHOD_STREAM]!, run.w, n);
-    runChunk(run, start, n);
-  }
-  const c = run.counts;
-  return {
-    draws, values, nominal: nominalOutputs, status: run.status, above: c[0]!, ratioCount: c[1]!, aboveCombined: c[2]!, combinedCount: c[3]!,
-    combinedEes: run.combinedEes, combinedEaEes: run.combinedEaEes, onlyEes: run.onlyEes, onlyEaEes: run.onlyEaEes,
-  };
-}
-
-interface RunState {
-  plan: Plan;
-  x: Float64Array;
-  out: Float64Array;
-  values: (Float32Array | null)[];
-  stored: Int32Array;
-  status: Uint32Array;
-  z: Float64Array[];
-  slots: Int32Array;
-  sds: Float64Array;
-  w: Float64Array;
-  combinedEes: Float32Array | null;
-  combinedEaEes: Float32Array | null;
-  onlyEes: Float32Array | null;
-  onlyEaEes: Float32Array | null;
-  ea0: number;
-  calibrated: number;
-  /** above, ratioCount, aboveCombined, combinedCount. */
-  counts: Float64Array;
-}
-
-const I_EA = OUTPUT_INDEX.ea;
-const I_EES = OUTPUT_INDEX.ees;
-const I_EAEES = OUTPUT_INDEX.eaEes;
-
-/** Draws start … start + n − 1 of the main run, deviates already in run.z and run.w. */
-function runChunk(run: RunState, start: number, n: number): void {
-  const { x, out, values, stored, status, z, slots, sds, w, counts, combinedEes, combinedEaEes, onlyEes, onlyEaEes, ea0, calibrated } = run;
-  const setup = run.plan.setup;
-  const nominalInputs = run.plan.nominalInputs;
-  const { slope, intercept, see } = CHEN_CALIBRATION;
-  const activeCount = slots.length;
-  const storedCount = stored.length;
-  for (let i = 0; i < n; i++) {
-    for (let a = 0; a < activeCount; a++) {
-      const s = slots[a]!;
-      x[s] = nominalInputs[s]! + sds[a]! * z[a]![i]!;
+    for (let a = 0; a < active.length; a++) {
+      const { input, stream, sd } = active[a]!;
+      fillNormals(streams[stream]!, z[a]!, n);
+      drawInput(columns[a]!, nominal[slotOf(input)]!, sd, z[a]!, n);
     }
-    status[evaluateDraw(setup, x, out)]!++;
-    const d = start + i;
-    for (let q = 0; q < storedCount; q++) {
-      const j = stored[q]!;
-      values[j]![d] = out[j]!;
-    }
-    const ratio = out[I_EAEES]!;
-    if (ratio - ratio === 0) {
-      counts[1]!++;
-      if (ratio > COUPLING_CUTOFF) counts[0]!++;
-    }
-    if (onlyEes !== null) {
-      const onlyInvasive = calibrated + see * w[i]!;
-      onlyEes[d] = onlyInvasive;
-      if (onlyEaEes !== null) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
-      const ees = out[I_EES]!;
-      if (ees - ees === 0) {
-        const invasive = slope * ees + intercept + see * w[i]!;
-        combinedEes![d] = invasive;
-        if (invasive > 0) {
-          const r = out[I_EA]! / invasive;
-          combinedEaEes![d] = r;
-          counts[3]!++;
-          if (r > COUPLING_CUTOFF) counts[2]!++;
-        } else combinedEaEes![d] = Number.NaN;
-      } else {
-        combinedEes![d] = Number.NaN;
-        combinedEaEes![d] = Number.NaN;
+    program.run(n);
+    program.countLosses('ees', n, sim.eesLosses);
+    for (const { target, source } of stored) copyInto(target, source, start, n);
+    for (let i = 0; i < n; i++) {
+      const ratio = ratioColumn[i]!;
+      if (ratio - ratio === 0) {
+        sim.ratioCount++;
+        if (ratio > COUPLING_CUTOFF) sim.above++;
       }
+    }
+    if (withMethodError) {
+      fillNormals(streams[METHOD_STREAM]!, w, n);
+      methodErrorChunk(sim, method, eaColumn, eesColumn, w, start, n);
+    }
+  }
+  return sim;
+}
+
+/** The method error of draws start … start + n − 1 (see simulate). */
+function methodErrorChunk(sim: Simulation, method: { ea: number | null; calibrated: number }, ea: Float64Array, ees: Float64Array, w: Float64Array, start: number, n: number): void {
+  const { slope, intercept, see } = CHEN_CALIBRATION;
+  // simulate allocates these three whenever there is a method error to draw.
+  const onlyEes = sim.onlyEes!;
+  const combinedEes = sim.combinedEes!;
+  const combinedEaEes = sim.combinedEaEes!;
+  const onlyEaEes = sim.onlyEaEes;
+  const ea0 = method.ea ?? Number.NaN;
+  const calibrated = method.calibrated;
+  for (let i = 0; i < n; i++) {
+    const d = start + i;
+    const onlyInvasive = calibrated + see * w[i]!;
+    onlyEes[d] = onlyInvasive;
+    if (onlyEaEes !== null) onlyEaEes[d] = onlyInvasive > 0 ? ea0 / onlyInvasive : Number.NaN;
+    const e = ees[i]!;
+    if (e - e === 0) {
+      const invasive = slope * e + intercept + see * w[i]!;
+      combinedEes[d] = invasive;
+      if (invasive > 0) {
+        const r = ea[i]! / invasive;
+        combinedEaEes[d] = r;
+        sim.combinedCount++;
+        if (r > COUPLING_CUTOFF) sim.aboveCombined++;
+      } else combinedEaEes[d] = Number.NaN;
+    } else {
+      combinedEes[d] = Number.NaN;
+      combinedEaEes[d] = Number.NaN;
     }
   }
 }
@@ -313,52 +296,61 @@ function intervalOf(src: Float32Array | null, scratch: Float64Array): [number, n
 }
 
 /**
- * Heart rate, height and weight reach no sensitivity key (Ea, Ees, Ea/Ees and
- * V0 do not depend on them): their share is exactly zero, so they are not run.
+ * Variance of each sensitivity key with only one input varying, over the same
+ * deviates as the main run. Only the inputs the keys depend on (the graph's
+ * edges) are run; the others' share is exactly zero. The program is the main
+ * run's (same inputs drawn, same outputs), with every drawn input but one held
+ * at the visit's value: its compiled form is already warm.
  */
-const SENSITIVITY_INPUT_SLOTS = new Set(
-  (['sbp', 'dbp', 'edv', 'esv', 'ef', 'sv', 'lvotDiameter', 'lvotVti', 'pep', 'et', 'pesMeasured'] as const).map((k) => SLOT[k]),
-);
-
-/** Variance of each sensitivity key with only one input varying, over the same deviates as the main run. */
-function oneAtATime(plan: Plan, seed: number, drawsPerInput: number): Map<number, Float64Array> {
-  const { setup, nominalInputs, active, nominalOutputs } = plan;
-  const keys = SENSITIVITY_KEYS.map((k) => OUTPUT_INDEX[k]);
-  const x = Float64Array.from(nominalInputs);
-  const out = new Float64Array(OUTPUT_COUNT);
+function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: readonly SensitivityKey[], wanted: readonly ResultKey[]): Map<ErrorInputKey, Float64Array> {
+  const { graph, nominal, active } = plan;
+  const reaching = new Set(keys.flatMap((k) => inputsOf(graph, k)));
+  const program = compileDraws(graph, nominal, active.map((a) => a.input), wanted, CHUNK);
+  const hold = (input: ErrorInputKey) => program.input(input).fill(nominal[slotOf(input)]!);
+  for (const { input } of active) hold(input);
   const z = new Float64Array(CHUNK);
-  const result = new Map<number, Float64Array>();
-  const streams = randomStreams(seed, SLOT_COUNT);
-  for (const { slot, sd } of active) {
-    if (!SENSITIVITY_INPUT_SLOTS.has(slot)) continue;
-    const rng = streams[slot]!;
+  const result = new Map<ErrorInputKey, Float64Array>();
+  const streams = randomStreams(seed, STREAM_COUNT);
+  const outputs = keys.map((k) => program.output(k));
+  const centres = keys.map((k) => nominal[slotOf(k)]!);
+  for (const { input, stream, sd } of active) {
+    if (!reaching.has(input)) continue;
+    const column = program.input(input);
     const count = new Float64Array(keys.length);
     const sum = new Float64Array(keys.length);
     const sumSq = new Float64Array(keys.length);
     for (let start = 0; start < drawsPerInput; start += CHUNK) {
       const n = Math.min(CHUNK, drawsPerInput - start);
-      fillNormals(rng, z, n);
-      for (let i = 0; i < n; i++) {
-        x[slot] = nominalInputs[slot]! + sd * z[i]!;
-        evaluateDraw(setup, x, out);
-        for (let q = 0; q < keys.length; q++) {
-          const j = keys[q]!;
-          const v = out[j]!;
-          if (v - v === 0) {
-            const dv = v - nominalOutputs[j]!;
-            count[q]!++;
-            sum[q]! += dv;
-            sumSq[q]! += dv * dv;
-          }
-        }
-      }
+      fillNormals(streams[stream]!, z, n);
+      drawInput(column, nominal[slotOf(input)]!, sd, z, n);
+      program.run(n);
+      for (let q = 0; q < keys.length; q++) accumulate(outputs[q]!, centres[q]!, n, q, count, sum, sumSq);
     }
-    x[slot] = nominalInputs[slot]!;
+    hold(input);
     const variance = new Float64Array(keys.length);
     for (let q = 0; q < keys.length; q++) variance[q] = sampleVariance(count[q]!, sum[q]!, sumSq[q]!);
-    result.set(slot, variance);
+    result.set(input, variance);
   }
   return result;
+}
+
+/** Count, sum and sum of squares of the finite deviations from `centre` in draws 0…n−1 of a column, into position q. */
+function accumulate(out: Float64Array, centre: number, n: number, q: number, count: Float64Array, sum: Float64Array, sumSq: Float64Array): void {
+  let c = 0;
+  let s1 = 0;
+  let s2 = 0;
+  for (let i = 0; i < n; i++) {
+    const v = out[i]!;
+    if (v - v === 0) {
+      const dv = v - centre;
+      c++;
+      s1 += dv;
+      s2 += dv * dv;
+    }
+  }
+  count[q]! += c;
+  sum[q]! += s1;
+  sumSq[q]! += s2;
 }
 
 
@@ -371,15 +363,6 @@ function sharesFrom(variances: { input: ErrorInputKey; variance: number }[]): Sh
   return kept
     .map((v) => ({ input: v.input, share: v.variance / keptTotal }))
     .sort((a, b) => b.share - a.share || (a.input < b.input ? -1 : a.input > b.input ? 1 : 0));
-}
-
-/** Result keys whose draws equal another key's in this run (key → the key stored). */
-function duplicateKeys(setup: KernelSetup): Map<ResultKey, ResultKey> {
-  const same = new Map<ResultKey, ResultKey>();
-  same.set(setup.useDoppler ? 'svDoppler' : 'svVolumetric', 'sv');
-  if (!setup.hasEf) same.set('efVolumes', 'ef');
-  same.set('tprDyn', 'tpr');
-  return same;
 }
 
 function checkedOptions(options: UncertaintyOptions): { draws: number; seed: number } {
@@ -396,21 +379,20 @@ function checkedOptions(options: UncertaintyOptions): { draws: number; seed: num
 export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptions = {}, choice: MethodChoice = defaultChoice(inputs), results: Results = computeResults(inputs, choice)): UncertaintyReport {
   const { draws, seed } = checkedOptions(options);
   const model = errorModelFor(inputs);
-  const plan = planFor(inputs, choice, model);
-  const computable = RESULT_KEYS.map((k) => OUTPUT_INDEX[k]).filter((j) => results[RESULT_KEYS[j]!].value !== null);
-  // Results that are the same draw under another name are stored once (e.g. SV used = Doppler SV).
-  const sameAs = duplicateKeys(plan.setup);
-  const keys = computable.filter((j) => !sameAs.has(RESULT_KEYS[j]!));
+  const plan = runPlanFor(inputs, choice, model);
+  // A result that passes another's value on (SV used = Doppler SV) has that result's draws: stored once.
+  const aliasOf = new Map<ResultKey, ResultKey>();
+  for (const p of plan.graph.nodes) if (p.alias !== null && results[p.key].value !== null) aliasOf.set(p.key, keyOfSlot(p.alias) as ResultKey);
+  const keys = RESULT_KEYS.filter((k) => results[k].value !== null && !aliasOf.has(k));
   const ees0 = results.ees.value;
   const method = ees0 === null ? null : { ea: results.ea.value, calibrated: CHEN_CALIBRATION.slope * ees0 + CHEN_CALIBRATION.intercept };
   const sim = simulate(plan, draws, randomStreams(seed, STREAMS_PER_VISIT), keys, method);
   const scratch = new Float64Array(draws);
 
   const outputs: Partial<Record<ResultKey, Spread>> = {};
-  for (const j of keys) {
-    const key = RESULT_KEYS[j]!;
+  for (const key of keys) {
     const value = results[key].value as number;
-    const summary = summarize(sim.values[j]!, value, scratch);
+    const summary = summarize(sim.values.get(key)!, value, scratch);
     if (summary === null) continue;
     const { n, mean, sd, low, high } = summary;
     outputs[key] = {
@@ -418,33 +400,30 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
       mean,
       sd,
       // Draws are stored in single precision: seven significant digits are what they hold.
-      ci95: [Number(low.toPrecision(7)), Number(high.toPrecision(7))],
+      interval95: [Number(low.toPrecision(7)), Number(high.toPrecision(7))],
       computableFraction: n / draws,
     };
   }
-  for (const [key, source] of sameAs) {
-    if (key === 'tprDyn') continue;
-    const spread = outputs[source];
-    if (spread && results[key].value !== null) outputs[key] = { ...spread, ci95: [...spread.ci95], value: results[key].value as number };
-  }
-  // TPR in dyn·s·cm⁻⁵ is TPR in Wood units times a constant: its draws map one to one.
-  const tpr = outputs.tpr;
-  if (tpr && results.tprDyn.value !== null) {
-    outputs.tprDyn = {
-      value: results.tprDyn.value,
-      mean: woodUnitsToDyn(tpr.mean),
-      sd: woodUnitsToDyn(tpr.sd),
-      ci95: [Number(woodUnitsToDyn(tpr.ci95[0]).toPrecision(7)), Number(woodUnitsToDyn(tpr.ci95[1]).toPrecision(7))],
-      computableFraction: tpr.computableFraction,
-    };
+  for (const key of RESULT_KEYS) {
+    let source = aliasOf.get(key);
+    while (source !== undefined && aliasOf.has(source)) source = aliasOf.get(source);
+    const spread = source === undefined ? undefined : outputs[source];
+    if (spread) outputs[key] = { ...spread, interval95: [...spread.interval95], value: results[key].value as number };
   }
 
-  const eesNotOk = draws - sim.status[DRAW_OK]!;
+  // Where Ees was lost in a draw: an input drawn outside its domain, tNd outside the curve's window, or Ees itself not positive.
+  let inadmissible = 0;
+  let lost = 0;
+  sim.eesLosses.forEach((count, slot) => {
+    lost += count;
+    if (isInputSlot(slot)) inadmissible += count;
+  });
+  const tNdOutside = sim.eesLosses[slotOf('normalizedElastanceAvg')]!;
   const ees: EesAvailability = {
-    notComputableFraction: eesNotOk / draws,
-    inadmissibleInputs: sim.status[DRAW_INADMISSIBLE]! / draws,
-    tNdOutsideWindow: sim.status[DRAW_TND_OUTSIDE]! / draws,
-    eesNotPositive: (eesNotOk - sim.status[DRAW_INADMISSIBLE]! - sim.status[DRAW_TND_OUTSIDE]!) / draws,
+    notComputableFraction: lost / draws,
+    inadmissibleInputs: inadmissible / draws,
+    tNdOutsideWindow: tNdOutside / draws,
+    eesNotPositive: (lost - inadmissible - tNdOutside) / draws,
   };
   const ratioDraws = sim.ratioCount;
 
@@ -454,10 +433,10 @@ export function assessUncertainty(inputs: VisitInputs, options: UncertaintyOptio
   const additivity: Partial<Record<SensitivityKey, number>> = {};
   const drawsPerInput = Math.min(draws, SENSITIVITY_DRAWS);
   if (options.sensitivity !== false) {
-    const perInput = oneAtATime(plan, seed, drawsPerInput);
+    const perInput = oneAtATime(plan, seed, drawsPerInput, SENSITIVITY_KEYS, wantedIn(keys));
     SENSITIVITY_KEYS.forEach((key, q) => {
       if (!outputs[key]) return;
-      const list = model.inputs.filter((e) => e.sd > 0 && perInput.has(SLOT[e.input])).map((e) => ({ input: e.input, variance: perInput.get(SLOT[e.input])![q]! }));
+      const list = model.inputs.filter((e) => e.sd > 0 && perInput.has(e.input)).map((e) => ({ input: e.input, variance: perInput.get(e.input)![q]! }));
       sensitivity[key] = sharesFrom(list);
       const total = outputs[key].sd ** 2;
       if (total > 0) additivity[key] = list.reduce((a, b) => a + b.variance, 0) / total;
@@ -501,12 +480,12 @@ function methodErrorReport(calibrated: number | null, sim: Simulation, scratch: 
   };
 }
 
-/** The main results with their 95 % intervals attached (`ci95`); values unchanged. */
+/** The main results with their 95 % intervals attached (`interval95`); values unchanged. */
 export function withIntervals(results: Results, report: UncertaintyReport): Results {
   const copy = { ...results };
   for (const key of RESULT_KEYS) {
     const spread = report.outputs[key];
-    if (spread && results[key].value !== null) copy[key] = { ...results[key], ci95: spread.ci95 };
+    if (spread && results[key].value !== null) copy[key] = { ...results[key], interval95: spread.interval95 };
   }
   return copy;
 }
@@ -518,7 +497,7 @@ export interface ChangeNoise {
   /** Second visit minus first, main results. */
   observed: number | null;
   /** 95 % interval of the change: observed change less the noise quantiles. */
-  ci95: [number, number] | null;
+  interval95: [number, number] | null;
   /** 95 % range of the change that measurement noise alone produces around zero. */
   noise95: [number, number] | null;
   /** The observed change lies outside the noise range (the interval of the change excludes 0). */
@@ -544,11 +523,11 @@ export interface ChangeUncertainty {
  */
 export function changeUncertainty(first: VisitInputs, second: VisitInputs, options: UncertaintyOptions = {}): ChangeUncertainty {
   const { draws, seed } = checkedOptions(options);
-  const keys = CHANGE_KEYS.map((k) => OUTPUT_INDEX[k]);
   const runs = [first, second].map((inputs, visit) => {
     const choice = defaultChoice(inputs);
     const results = computeResults(inputs, choice);
-    const plan = planFor(inputs, choice, errorModelFor(inputs));
+    const keys = CHANGE_KEYS.filter((k) => results[k].value !== null);
+    const plan = runPlanFor(inputs, choice, errorModelFor(inputs));
     const sim = simulate(plan, draws, randomStreams(seed, STREAMS_PER_VISIT, visit * STREAMS_PER_VISIT), keys, null);
     return { results, sim };
   });
@@ -557,13 +536,12 @@ export function changeUncertainty(first: VisitInputs, second: VisitInputs, optio
   const changes = {} as Record<ChangeKey, ChangeNoise>;
   const source = `Monte Carlo, ${formatCount(draws)} independent draws per visit, seed ${seed}; input measurement error only (docs/uncertainty.md)`;
   for (const key of CHANGE_KEYS) {
-    const j = OUTPUT_INDEX[key];
     const a0 = a.results[key].value;
     const b0 = b.results[key].value;
-    const va = a.sim.values[j];
-    const vb = b.sim.values[j];
+    const va = a.sim.values.get(key);
+    const vb = b.sim.values.get(key);
     if (a0 === null || b0 === null || !va || !vb) {
-      changes[key] = { observed: null, ci95: null, noise95: null, exceeds: null, computableFraction: 0, source };
+      changes[key] = { observed: null, interval95: null, noise95: null, exceeds: null, computableFraction: 0, source };
       continue;
     }
     let n = 0;
@@ -573,7 +551,7 @@ export function changeUncertainty(first: VisitInputs, second: VisitInputs, optio
     }
     const observed = b0 - a0;
     if (n === 0) {
-      changes[key] = { observed, ci95: null, noise95: null, exceeds: null, computableFraction: 0, source };
+      changes[key] = { observed, interval95: null, noise95: null, exceeds: null, computableFraction: 0, source };
       continue;
     }
     const [low, high] = interval95(scratch, n);
@@ -581,7 +559,7 @@ export function changeUncertainty(first: VisitInputs, second: VisitInputs, optio
     const noise95: [number, number] = [Number(low.toPrecision(7)), Number(high.toPrecision(7))];
     changes[key] = {
       observed,
-      ci95: [Number((observed - noise95[1]).toPrecision(7)), Number((observed - noise95[0]).toPrecision(7))],
+      interval95: [Number((observed - noise95[1]).toPrecision(7)), Number((observed - noise95[0]).toPrecision(7))],
       noise95,
       exceeds: observed > noise95[1] || observed < noise95[0],
       computableFraction: n / draws,
@@ -593,7 +571,7 @@ export function changeUncertainty(first: VisitInputs, second: VisitInputs, optio
 
 /** A change's noise in the shape `record compare` rows carry (src/records/compare.ts `NoiseCheck`). */
 export interface ChangeNoiseCheck {
-  ci95: [number, number];
+  interval95: [number, number];
   exceeds: boolean;
   source: string;
 }
@@ -604,7 +582,7 @@ export function changeNoiseChecks(first: VisitInputs, second: VisitInputs, optio
   const checks: Partial<Record<ChangeKey, ChangeNoiseCheck>> = {};
   for (const key of CHANGE_KEYS) {
     const c = changes[key];
-    if (c.ci95 !== null && c.exceeds !== null) checks[key] = { ci95: c.ci95, exceeds: c.exceeds, source: c.source };
+    if (c.interval95 !== null && c.exceeds !== null) checks[key] = { interval95: c.interval95, exceeds: c.exceeds, source: c.source };
   }
   return checks;
 }

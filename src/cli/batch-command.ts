@@ -199,7 +199,6 @@ async function streamRows(input: AsyncIterable<string>, output: Writable, worker
       if (sheet.layout && !started) {
         // The header has been read: say how clashing result columns are named, and tell the workers.
         started = true;
-        if (sheet.layout.renamed.length) info(`input columns share names with results; those results are in ${sheet.layout.renamed.join(', ')}`);
         for (const w of pool) w.header(sheet.layout.header);
       }
     }

@@ -36,7 +36,7 @@ async function showDemoSeries(): Promise<void> {
   process.stdout.write('\n' + '─'.repeat(72) + '\nelastimate demo, part 2: a follow-up series, as `elastimate record show cases/cardio-oncology.subject.json` prints it\n\n');
   const entries = await printSeries(file, {});
   if (entries.length < 2) return;
-  const lowest = entries.slice(1).reduce((low, e) => ((e.assessment.results.ef.value ?? Infinity) < (low.assessment.results.ef.value ?? Infinity) ? e : low));
+  const lowest = entries.slice(1).reduce((low, e) => ((e.assessment.results.efUsed.value ?? Infinity) < (low.assessment.results.efUsed.value ?? Infinity) ? e : low));
   process.stdout.write('─'.repeat(72) + `\nelastimate demo, part 3: \`elastimate record compare cases/cardio-oncology.subject.json 1 ${lowest.index}\`\n\n`);
   await printComparison(file, '1', String(lowest.index), {});
 }

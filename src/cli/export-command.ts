@@ -55,7 +55,7 @@ export async function runExport(paths: string[], opts: Record<string, unknown>):
   if (opts.json === true) {
     text = stringifySafe({
       format: EXPORT_FORMAT,
-      formatVersion: 1,
+      formatVersion: 2,
       tool: { name: 'elastimate', version: toolVersion() },
       methodsVersion: METHODS_VERSION,
       columns,

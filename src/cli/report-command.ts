@@ -61,7 +61,7 @@ export async function buildReportModel(file: SubjectFile, options: ReportModelOp
     const noise = uncertainty.changeUncertainty(from.assessment.inputs, to.assessment.inputs, runOptions);
     for (const row of comparison.rows) {
       const n = (noise.changes as Record<string, (typeof noise.changes)['ea'] | undefined>)[row.key];
-      if (n && n.ci95 && n.exceeds !== null) row.noise = { ci95: n.ci95, exceeds: n.exceeds, source: n.source };
+      if (n && n.interval95 && n.exceeds !== null) row.noise = { interval95: n.interval95, exceeds: n.exceeds, source: n.source };
     }
   }
 

@@ -10,12 +10,12 @@
  */
 import { csvParseRows } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
-import { computeResults } from '../assessment/compute.js';
+import { computeResults } from '../assessment/graph/index.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
-import type { Results } from '../assessment/compute.js';
+import type { Results } from '../assessment/graph/index.js';
 import type { Flag } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
 import { CsvBytes, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
@@ -49,8 +49,6 @@ export interface BatchLayout {
   recognised: { index: number; column: ColumnKind }[];
   /** The output header: input columns, result columns, flags, notComputable, methodsVersion, error. */
   outputHeader: string[];
-  /** Result columns renamed `<key>_result` because an input column had that name. */
-  renamed: string[];
 }
 
 /** Plan the output from the input header. Refuses empty or repeated column names. */
@@ -83,7 +81,7 @@ export function planBatch(header: readonly string[]): BatchLayout {
     throw new InputError({ field: 'header', value: showValue(header.join(',')), reason: 'no measurement columns recognised', accepted: `columns named like the flags: ${required}, and optionally hr, ef, sv, height, weight, … (docs/batch.md)` });
   }
   const taken = new Set(seen.keys());
-  const trailing = [...resultColumns(taken), ...trailingColumns(taken)];
+  const trailing = [...resultColumns(), ...trailingColumns()];
   const clash = trailing.find((c) => taken.has(c.name.toLowerCase()));
   if (clash) {
     throw new InputError({ field: `column "${clash.name}"`, value: showValue(clash.name), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash.name} (rename or drop it)` });
@@ -92,7 +90,6 @@ export function planBatch(header: readonly string[]): BatchLayout {
     header: [...header],
     recognised,
     outputHeader: [...header, ...trailing.map((c) => c.name)],
-    renamed: trailing.filter((c) => c.name.endsWith('_result')).map((c) => c.name),
   };
 }
 

@@ -62,7 +62,7 @@ export type Verdict = 'beyond-noise' | 'within-noise' | 'not-computable';
 
 /** The 95 % interval of the change (to − from, in the row's unit) from the uncertainty of the inputs. */
 export interface NoiseCheck {
-  ci95: [number, number];
+  interval95: [number, number];
   /** True when the interval excludes no change. */
   exceeds: boolean;
   source: string;
@@ -174,7 +174,7 @@ export function compareVisits(a: Assessment, b: Assessment): Comparison {
   const pes = changeRow('pes', 'End-systolic pressure Pes', 'mmHg', ra.pes.value, rb.pes.value, leastSignificantChange(pesCv, REPEATABILITY.pesSource), ra.pes.reason ?? rb.pes.reason);
   pes.parts = [
     part('ea', 'arterial elastance (Δln Ea)', ea.logChange, 'Ea not computable at one of the visits'),
-    part('strokeVolume', 'stroke volume (Δln SV)', logRatio(ra.sv.value, rb.sv.value), 'stroke volume missing at one of the visits'),
+    part('strokeVolume', 'stroke volume (Δln SV)', logRatio(ra.svUsed.value, rb.svUsed.value), 'stroke volume missing at one of the visits'),
   ];
 
   const ees = changeRow('ees', 'End-systolic elastance Ees (single-beat)', 'mmHg/mL', ra.ees.value, rb.ees.value, leastSignificantChange(REPEATABILITY.eesCv, REPEATABILITY.eesSource), ra.ees.reason ?? rb.ees.reason);

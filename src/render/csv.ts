@@ -11,7 +11,7 @@
  */
 import { csvFormatRow, csvFormatValue } from 'd3-dsv';
 import type { Assessment } from '../assessment/assess.js';
-import { RESULT_KEYS, type ResultKey, type Results } from '../assessment/compute.js';
+import { RESULT_KEYS, RESULT_UNITS, type ResultKey, type Results } from '../assessment/graph/index.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
@@ -30,14 +30,6 @@ export function csvText(rows: readonly (readonly string[])[]): string {
   return text;
 }
 
-/** Units of the result keys (docs/json-output.md); a test checks them against computed results. */
-export const RESULT_UNITS: Partial<Record<ResultKey, string>> = {
-  pes: 'mmHg', map: 'mmHg', pp: 'mmHg', sv: 'mL', svVolumetric: 'mL', svDoppler: 'mL', ef: '%', efVolumes: '%',
-  co: 'L/min', ci: 'L/min/m²', bsa: 'm²', tpr: 'WU', tprDyn: 'dyn·s·cm⁻⁵', compliance: 'mL/mmHg',
-  ea: 'mmHg/mL', eaIndexed: 'mmHg·m²/mL', eaResistance: 'mmHg/mL', tNd: '', endAvg: '', endEst: '',
-  ees: 'mmHg/mL', eesIndexed: 'mmHg·m²/mL', eaEes: '', eaEesFromEf: '', v0: 'mL', eesNoIntercept: 'mmHg/mL',
-};
-
 const SCALE = [1, 10, 100, 1000, 1e4, 1e5, 1e6, 1e7, 1e8];
 
 /** Decimals per unit, looked up once per unit rather than once per cell. */
@@ -52,7 +44,7 @@ function decimalsOf(unit: string): number {
 }
 
 /** The documented unit and decimals of each result key, in RESULT_KEYS order, so the hot path skips the lookup. */
-const RESULT_UNIT_LIST: readonly string[] = RESULT_KEYS.map((key) => RESULT_UNITS[key] ?? '');
+const RESULT_UNIT_LIST: readonly string[] = RESULT_KEYS.map((key) => RESULT_UNITS[key]);
 const RESULT_DECIMALS: readonly number[] = RESULT_UNIT_LIST.map(decimalsOf);
 
 /**
@@ -237,7 +229,7 @@ export class CsvBytes {
 }
 
 /** The results whose absence is worth a reason in the `notComputable` column (the rest need an input not given). */
-const EXPLAINED_KEYS: readonly ResultKey[] = ['pes', 'ea', 'tNd', 'endAvg', 'endEst', 'ees', 'eaEes', 'v0'];
+const EXPLAINED_KEYS: readonly ResultKey[] = ['pes', 'ea', 'tNd', 'normalizedElastanceAvg', 'normalizedElastanceEst', 'ees', 'eaEes', 'v0'];
 
 export interface ColumnSpec {
   name: string;
@@ -249,11 +241,6 @@ export interface ColumnSpec {
 const INPUT_NUMERIC: readonly NumericKey[] = NUMERIC_FIELDS.map((f) => f.key);
 /** Method choices and sex, after rhythm and the valve findings. */
 const INPUT_CHOICES = ['pesMethod', 'mapMethod', 'bsaMethod', 'sex'] as const;
-
-/** Result column name: the JSON key, or `<key>_result` when an input column already has that name. */
-export function resultColumnName(key: string, taken: ReadonlySet<string>): string {
-  return taken.has(key.toLowerCase()) ? `${key}_result` : key;
-}
 
 export function inputColumns(): ColumnSpec[] {
   const cols: ColumnSpec[] = INPUT_NUMERIC.map((key) => {
@@ -271,32 +258,31 @@ export function inputColumns(): ColumnSpec[] {
   return cols;
 }
 
-export function resultColumns(taken: ReadonlySet<string>): ColumnSpec[] {
-  return RESULT_KEYS.map((key) => ({ name: resultColumnName(key, taken), unit: RESULT_UNITS[key] ?? '', description: `results.${key}.value of the JSON output (docs/json-output.md)` }));
+export function resultColumns(): ColumnSpec[] {
+  return RESULT_KEYS.map((key) => ({ name: key, unit: RESULT_UNITS[key], description: `results.${key}.value of the JSON output (docs/json-output.md)` }));
 }
 
 /** The trailing columns every table shares. */
-export function trailingColumns(taken: ReadonlySet<string>): ColumnSpec[] {
+export function trailingColumns(): ColumnSpec[] {
   return [
-    { name: resultColumnName('flags', taken), unit: '', description: 'codes of the checks that fired, separated by ";" (e.g. ef-gap;rhythm)' },
-    { name: resultColumnName('notComputable', taken), unit: '', description: 'why pes, ea, tNd, endAvg, endEst, ees, eaEes or v0 is empty: "key: reason" separated by "; " (other results are empty only when an input they need was not given)' },
-    { name: resultColumnName('methodsVersion', taken), unit: '', description: 'version of the methods that produced the results' },
-    { name: resultColumnName('error', taken), unit: '', description: 'why the row could not be computed (then every result is empty)' },
+    { name: 'flags', unit: '', description: 'codes of the checks that fired, separated by ";" (e.g. ef-gap;rhythm)' },
+    { name: 'notComputable', unit: '', description: 'why pes, ea, tNd, normalizedElastanceAvg, normalizedElastanceEst, ees, eaEes or v0 is empty: "key: reason" separated by "; " (other results are empty only when an input they need was not given)' },
+    { name: 'methodsVersion', unit: '', description: 'version of the methods that produced the results' },
+    { name: 'error', unit: '', description: 'why the row could not be computed (then every result is empty)' },
   ];
 }
 
 /** Columns of `elastimate export`: subject, visit, date, note, inputs, results, trailing columns. */
 export function exportDictionary(): ColumnSpec[] {
   const inputs = inputColumns();
-  const taken = new Set(['subject', 'visit', 'date', 'note', ...inputs.map((c) => c.name.toLowerCase())]);
   return [
     { name: 'subject', unit: '', description: 'pseudonymous subject id' },
     { name: 'visit', unit: '', description: 'visit number in date order (1 = first)' },
     { name: 'date', unit: 'YYYY-MM-DD', description: 'visit date' },
     { name: 'note', unit: '', description: 'free-text note of the visit' },
     ...inputs,
-    ...resultColumns(taken),
-    ...trailingColumns(taken),
+    ...resultColumns(),
+    ...trailingColumns(),
   ];
 }
 

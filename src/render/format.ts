@@ -31,9 +31,9 @@ export function formatValue(value: number | null | undefined, unit: string, deci
 export function formatQuantity(q: Quantity): string {
   if (q.value === null) return `not computable${q.reason ? ` (${q.reason})` : ''}`;
   const base = formatValue(q.value, q.unit);
-  if (q.ci95) {
+  if (q.interval95) {
     const d = decimalsFor(q.unit);
-    return `${base}  (95% range ${formatNumber(q.ci95[0], d)} to ${formatNumber(q.ci95[1], d)})`;
+    return `${base}  (95% range ${formatNumber(q.interval95[0], d)} to ${formatNumber(q.interval95[1], d)})`;
   }
   return base;
 }

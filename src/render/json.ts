@@ -5,9 +5,11 @@
  */
 import type { Assessment } from '../assessment/assess.js';
 import type { Mechanics } from '../assessment/mechanics.js';
+import type { EndDiastolicCurve } from '../physiology/end-diastolic-pressure-volume.js';
 
 export const JSON_FORMAT = 'elastimate-assessment';
-export const JSON_FORMAT_VERSION = 1;
+/** 2: result keys renamed (svUsed, efUsed, normalizedElastanceAvg/Est, interval95, edpUsed, edvUsed, esvUsed); docs/json-output.md lists them. */
+export const JSON_FORMAT_VERSION = 2;
 
 export function assessmentToJson(a: Assessment, toolVersion: string): Record<string, unknown> {
   const inputs = { ...a.inputs } as Record<string, unknown>;
@@ -29,10 +31,28 @@ export function assessmentToJson(a: Assessment, toolVersion: string): Record<str
   };
 }
 
-/** Wall stress, energetics, diastolic side and loop geometry under their own key (docs/report.md). */
+/**
+ * Wall stress, energetics, diastolic side and loop geometry under their own
+ * key (docs/report.md). A value used for an input (EDP entered or estimated,
+ * the loop's EDV and ESV) carries the suffix `Used`, so no result key equals
+ * an input key.
+ */
 function mechanicsToJson(m: Mechanics): Record<string, unknown> {
-  const { diastolicCurve: _sameAsDiastolicCurve, ...loop } = m.loop;
-  return { wallStress: m.wallStress, energetics: m.energetics, diastolic: m.diastolic, loop, afterloadNote: m.afterloadNote };
+  const { diastolicCurve: _sameAsDiastolicCurve, edv, esv, edp, ...loop } = m.loop;
+  const { edp: edpUsed, curve, ...diastolic } = m.diastolic;
+  return {
+    wallStress: m.wallStress,
+    energetics: m.energetics,
+    diastolic: { edpUsed, ...diastolic, curve: curve && curveToJson(curve) },
+    loop: { edvUsed: edv, esvUsed: esv, edpUsed: edp, ...loop },
+    afterloadNote: m.afterloadNote,
+  };
+}
+
+/** The diastolic curve, its building point named as the values used (edvUsed, edpUsed). */
+function curveToJson(curve: EndDiastolicCurve): Record<string, unknown> {
+  const { edv, edp, ...rest } = curve;
+  return { ...rest, edvUsed: edv, edpUsed: edp };
 }
 
 export const INPUT_UNITS = {

@@ -5,7 +5,7 @@
  * version (report-markdown.ts) is built from the same model and helpers.
  */
 import type { Assessment } from '../assessment/assess.js';
-import type { ResultKey } from '../assessment/compute.js';
+import type { ResultKey } from '../assessment/graph/index.js';
 import type { Quantity } from '../assessment/result.js';
 import type { UncertaintyReport } from '../assessment/uncertainty.js';
 import type { Comparison, LeastSignificantChange } from '../records/compare.js';
@@ -20,7 +20,7 @@ export interface ReportVisit {
   index: number;
   date: string;
   note?: string;
-  /** Results carry `ci95` when the uncertainty was computed. */
+  /** Results carry `interval95` when the uncertainty was computed. */
   assessment: Assessment;
   uncertainty: UncertaintyReport | null;
 }
@@ -92,7 +92,7 @@ export function trendSpecs(m: ReportModel): TrendChartSpec[] {
       points: m.visits.map((v) => {
         const q = v.assessment.results[resultKey];
         const p: TrendChartSpec['points'][number] = { index: v.index, date: v.date, value: q.value };
-        if (q.ci95) p.ci95 = q.ci95;
+        if (q.interval95) p.interval95 = q.interval95;
         if (q.reason) p.reason = q.reason;
         return p;
       }),
@@ -116,9 +116,9 @@ export interface KeyRow {
 }
 
 function intervalText(q: Quantity): string {
-  if (q.value === null || !q.ci95) return '—';
+  if (q.value === null || !q.interval95) return '—';
   const d = decimalsFor(q.unit);
-  return `${formatNumber(q.ci95[0], d)} to ${formatNumber(q.ci95[1], d)}`;
+  return `${formatNumber(q.interval95[0], d)} to ${formatNumber(q.interval95[1], d)}`;
 }
 
 function pairText(pair: [number, number] | null, decimals: number): string {
@@ -136,8 +136,8 @@ export function keyRows(v: ReportVisit): KeyRow[] {
   });
   const rows: KeyRow[] = [
     q('End-systolic pressure Pes', r.pes),
-    q('Stroke volume used', r.sv),
-    q('Ejection fraction', r.ef),
+    q('Stroke volume used', r.svUsed),
+    q('Ejection fraction', r.efUsed),
     q('Arterial elastance Ea', r.ea),
     q('End-systolic elastance Ees', r.ees),
     q('Coupling ratio Ea/Ees', r.eaEes, r.eaEes.value !== null ? (r.eaEes.value > 1.2 ? 'above the 1.2 cut-off (Cheng 2008)' : 'at or below the 1.2 cut-off (Cheng 2008)') : ''),
@@ -175,8 +175,8 @@ export const VISIT_COLUMNS: { title: string; unit: string; cell(v: ReportVisit):
   { title: 'HR', unit: 'bpm', cell: (v) => formatNumber(v.assessment.inputs.hr, 0) },
   { title: 'SBP/DBP', unit: 'mmHg', cell: (v) => `${formatNumber(v.assessment.inputs.sbp, 0)}/${formatNumber(v.assessment.inputs.dbp, 0)}` },
   { title: 'EDV/ESV', unit: 'mL', cell: (v) => `${formatNumber(v.assessment.inputs.edv, 0)}/${formatNumber(v.assessment.inputs.esv, 0)}` },
-  { title: 'EF', unit: '%', cell: (v) => formatNumber(v.assessment.results.ef.value, 0) },
-  { title: 'SV', unit: 'mL', cell: (v) => formatNumber(v.assessment.results.sv.value, 0) },
+  { title: 'EF', unit: '%', cell: (v) => formatNumber(v.assessment.results.efUsed.value, 0) },
+  { title: 'SV', unit: 'mL', cell: (v) => formatNumber(v.assessment.results.svUsed.value, 0) },
   { title: 'Pes', unit: 'mmHg', cell: (v) => formatNumber(v.assessment.results.pes.value, 0) },
   { title: 'Ea', unit: 'mmHg/mL', cell: (v) => formatNumber(v.assessment.results.ea.value, 2) },
   { title: 'Ees', unit: 'mmHg/mL', cell: (v) => formatNumber(v.assessment.results.ees.value, 2) },

@@ -16,7 +16,8 @@ import { wrap } from './terminal.js';
 
 export const SERIES_FORMAT = 'elastimate-series';
 export const COMPARISON_FORMAT = 'elastimate-comparison';
-export const SERIES_FORMAT_VERSION = 1;
+/** 2: the result keys of docs/json-output.md, format version 2. */
+export const SERIES_FORMAT_VERSION = 2;
 
 /** A visit as the comparison views name it. */
 export interface VisitRef {
@@ -71,8 +72,8 @@ const COLUMNS: Column[] = [
   { title: 'date', unit: '', width: 12, cell: (e) => e.date },
   { title: 'HR', unit: 'bpm', width: 5, cell: (e) => formatNumber(e.assessment.inputs.hr, 0) },
   { title: 'SBP/DBP', unit: 'mmHg', width: 9, cell: (e) => `${formatNumber(e.assessment.inputs.sbp, 0)}/${formatNumber(e.assessment.inputs.dbp, 0)}` },
-  { title: 'EF', unit: '%', width: 5, cell: (e) => formatNumber(e.assessment.results.ef.value, 0) },
-  { title: 'SV', unit: 'mL', width: 5, cell: (e) => formatNumber(e.assessment.results.sv.value, 0) },
+  { title: 'EF', unit: '%', width: 5, cell: (e) => formatNumber(e.assessment.results.efUsed.value, 0) },
+  { title: 'SV', unit: 'mL', width: 5, cell: (e) => formatNumber(e.assessment.results.svUsed.value, 0) },
   { title: 'Pes', unit: 'mmHg', width: 11, cell: (e, c) => valueWithChange('pes', e, c) },
   { title: 'Ea', unit: 'mmHg/mL', width: 12, cell: (e, c) => valueWithChange('ea', e, c) },
   { title: 'Ees', unit: 'mmHg/mL', width: 12, cell: (e, c) => valueWithChange('ees', e, c) },
@@ -151,7 +152,7 @@ function ratioText(row: ChangeRow): string {
 function noiseText(row: ChangeRow): string | null {
   if (!row.noise) return null;
   const d = decimalsFor(row.unit) + 1;
-  const [lo, hi] = row.noise.ci95;
+  const [lo, hi] = row.noise.interval95;
   const verdict = row.noise.exceeds ? 'excludes no change: larger than the uncertainty of the inputs' : 'includes no change: within the uncertainty of the inputs';
   return `input uncertainty: 95 % interval of the change ${signed(lo, d)} to ${signed(hi, d)}${row.unit ? ' ' + row.unit : ''}; ${verdict}. Source: ${row.noise.source}`;
 }

@@ -45,9 +45,9 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   line('Pulse pressure', r.pp);
 
   section('Flow and arterial load');
-  line('Stroke volume used', r.sv);
+  line('Stroke volume used', r.svUsed);
   if (r.svDoppler.value !== null) line('  volumetric SV', r.svVolumetric);
-  line('Ejection fraction used', r.ef);
+  line('Ejection fraction used', r.efUsed);
   if (a.inputs.ef !== null) line('  EF from volumes', r.efVolumes);
   line('Cardiac output', r.co);
   line('Cardiac index', r.ci);
@@ -65,8 +65,8 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
 
   section('Ventricular elastance (single-beat, Chen 2001)');
   line('Normalized time tNd', r.tNd);
-  line('ENd(avg)', r.endAvg);
-  line('ENd(est)', r.endEst);
+  line('ENd(avg)', r.normalizedElastanceAvg);
+  line('ENd(est)', r.normalizedElastanceEst);
   line('End-systolic elastance Ees', r.ees);
   line('  Ees indexed to BSA', r.eesIndexed);
   line('  implied V0', r.v0);
@@ -105,7 +105,7 @@ export function renderVariants(a: Assessment, s: Style = plainStyle): string[] {
   for (const v of a.variants) {
     const text =
       `${pad(v.pesMethod === 'sbp90' ? '0.9×SBP' : v.pesMethod === 'weighted' ? '(2·SBP+DBP)/3' : 'measured', 24)}` +
-      `${pad(v.strokeVolumeSource, 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.sv, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
+      `${pad(v.strokeVolumeSource, 12)}${padLeft(formatNumber(v.pes, 0), 6)}${padLeft(formatNumber(v.svUsed, 0), 6)}${padLeft(formatNumber(v.ea, 2), 7)}  ` +
       `${pad(v.eesMethod, 12)}${padLeft(formatNumber(v.ees, 2), 7)}${padLeft(formatNumber(v.eaEes, 2), 8)}`;
     lines.push(v.isMain ? s.strong(text + '  ← reported') : text);
   }

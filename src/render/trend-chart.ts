@@ -17,7 +17,7 @@ export interface TrendPoint {
   index: number;
   date: string;
   value: number | null;
-  ci95?: [number, number];
+  interval95?: [number, number];
   /** Why there is no value. */
   reason?: string;
 }
@@ -66,7 +66,7 @@ export function renderTrendChart(spec: TrendChartSpec, width = 640): string {
   let top = 0;
   for (const p of spec.points) {
     if (p.value !== null) top = Math.max(top, p.value);
-    if (p.ci95) top = Math.max(top, p.ci95[1]);
+    if (p.interval95) top = Math.max(top, p.interval95[1]);
   }
   if (band) top = Math.max(top, band.high);
   if (spec.reference) top = Math.max(top, spec.reference.value);
@@ -110,8 +110,8 @@ export function renderTrendChart(spec: TrendChartSpec, width = 640): string {
   const drawn = spec.points.map((p, i) => ({ p, i })).filter(({ p }) => p.value !== null);
   out.push(`<g class="series" stroke="${LINE}" fill="none">`);
   for (const { p, i } of drawn) {
-    if (p.ci95) {
-      const [lo, hi] = p.ci95;
+    if (p.interval95) {
+      const [lo, hi] = p.interval95;
       out.push(`<g class="interval" data-visit="${p.index}"><line x1="${n2(x(i))}" y1="${n2(y(lo))}" x2="${n2(x(i))}" y2="${n2(y(hi))}" stroke-width="1.4"/><line x1="${n2(x(i) - 5)}" y1="${n2(y(lo))}" x2="${n2(x(i) + 5)}" y2="${n2(y(lo))}"/><line x1="${n2(x(i) - 5)}" y1="${n2(y(hi))}" x2="${n2(x(i) + 5)}" y2="${n2(y(hi))}"/></g>`);
     }
   }
@@ -142,7 +142,7 @@ export function renderTrendChart(spec: TrendChartSpec, width = 640): string {
     out.push(`<circle cx="${kx + 8}" cy="${ky - 4}" r="4.5" fill="#ffffff" stroke="${LINE}" stroke-width="2"/><text x="${kx + 22}" y="${ky}">within the band</text>`);
     ky += 17;
   }
-  if (spec.points.some((p) => p.ci95)) {
+  if (spec.points.some((p) => p.interval95)) {
     out.push(`<line x1="${kx + 8}" y1="${ky - 10}" x2="${kx + 8}" y2="${ky + 2}" stroke="${LINE}" stroke-width="1.4"/><text x="${kx + 22}" y="${ky}">95 % interval (inputs)</text>`);
     ky += 17;
   }

@@ -4,7 +4,7 @@
  * assessment and the report in, text or plain data out.
  */
 import type { Assessment } from '../assessment/assess.js';
-import type { ResultKey } from '../assessment/compute.js';
+import type { ResultKey } from '../assessment/graph/index.js';
 import type { ErrorInputKey } from '../assessment/error-model.js';
 import { formatCount, withIntervals, type Share, type UncertaintyReport } from '../assessment/uncertainty.js';
 import { decimalsFor, formatNumber, formatValue, pad } from './format.js';
@@ -21,13 +21,13 @@ export const INPUT_SHORT_NAMES: Record<ErrorInputKey, string> = {
 
 const INTERVAL_ROWS: { key: ResultKey; label: string }[] = [
   { key: 'pes', label: 'Pes' },
-  { key: 'sv', label: 'SV used' },
-  { key: 'ef', label: 'EF used' },
+  { key: 'svUsed', label: 'SV used' },
+  { key: 'efUsed', label: 'EF used' },
   { key: 'co', label: 'Cardiac output' },
   { key: 'tpr', label: 'TPR' },
   { key: 'ea', label: 'Ea' },
   { key: 'tNd', label: 'tNd' },
-  { key: 'endEst', label: 'ENd(est)' },
+  { key: 'normalizedElastanceEst', label: 'ENd(est)' },
   { key: 'ees', label: 'Ees' },
   { key: 'eaEes', label: 'Ea/Ees' },
   { key: 'v0', label: 'V0' },
@@ -76,7 +76,7 @@ export function uncertaintySection(a: Assessment, report: UncertaintyReport, s: 
     if (!spread) continue;
     const unit = r[row.key].unit;
     const note = spread.computableFraction < 1 ? s.dim(`  computable in ${percent(spread.computableFraction)} of draws`) : '';
-    lines.push(`  ${pad(row.label, 16)}${pad(formatValue(spread.value, unit), 16)}95 % ${range(spread.ci95, unit)}${note}`);
+    lines.push(`  ${pad(row.label, 16)}${pad(formatValue(spread.value, unit), 16)}95 % ${range(spread.interval95, unit)}${note}`);
   }
   const e = report.ees;
   lines.push(
@@ -139,7 +139,7 @@ function roundPair(p: readonly [number, number] | null): [number, number] | null
 export function uncertaintyJson(report: UncertaintyReport): { sensitivity: Record<string, Share[]>; uncertainty: Record<string, unknown> } {
   const outputs: Record<string, unknown> = {};
   for (const [key, spread] of Object.entries(report.outputs)) {
-    outputs[key] = { mean: round(spread.mean), sd: round(spread.sd), ci95: roundPair(spread.ci95), computableFraction: spread.computableFraction };
+    outputs[key] = { mean: round(spread.mean), sd: round(spread.sd), interval95: roundPair(spread.interval95), computableFraction: spread.computableFraction };
   }
   const m = report.methodError;
   return {
@@ -167,8 +167,8 @@ export function uncertaintyJson(report: UncertaintyReport): { sensitivity: Recor
         source: m.source,
         calibration: { slope: m.slope, intercept: m.intercept, see: m.see },
         note: 'methodOnly: invasive Ees predicted from the main estimate (0.86·Ees + 0.40 ± SEE); combined: measurement and method error together',
-        ees: { calibrated: m.calibratedEes === null ? null : round(m.calibratedEes), methodOnly: roundPair(m.eesMethodOnly), combined: roundPair(m.eesCombined), measurementOnly: roundPair(report.outputs.ees?.ci95 ?? null) },
-        eaEes: { methodOnly: roundPair(m.eaEesMethodOnly), combined: roundPair(m.eaEesCombined), measurementOnly: roundPair(report.outputs.eaEes?.ci95 ?? null) },
+        ees: { calibrated: m.calibratedEes === null ? null : round(m.calibratedEes), methodOnly: roundPair(m.eesMethodOnly), combined: roundPair(m.eesCombined), measurementOnly: roundPair(report.outputs.ees?.interval95 ?? null) },
+        eaEes: { methodOnly: roundPair(m.eaEesMethodOnly), combined: roundPair(m.eaEesCombined), measurementOnly: roundPair(report.outputs.eaEes?.interval95 ?? null) },
       },
       sensitivityMethod: {
         method: 'one input at a time: variance of the output with only that input drawn (same deviates as the main run), divided by the sum over inputs; interactions are ignored',
@@ -202,7 +202,7 @@ export function seriesIntervalLines(entries: readonly { index: number; date: str
     const cell = (label: string, key: 'pes' | 'ea' | 'ees' | 'eaEes') => {
       const spread = report.outputs[key];
       const d = decimalsFor(r[key].unit);
-      return spread ? `${label} ${formatNumber(spread.value, d)} (${formatNumber(spread.ci95[0], d)} to ${formatNumber(spread.ci95[1], d)})` : `${label} —`;
+      return spread ? `${label} ${formatNumber(spread.value, d)} (${formatNumber(spread.interval95[0], d)} to ${formatNumber(spread.interval95[1], d)})` : `${label} —`;
     };
     const missing = report.ees.notComputableFraction > 0 ? s.dim(`  Ees not computable in ${percent(report.ees.notComputableFraction)} of draws`) : '';
     lines.push(`  ${pad(String(e.index), 3)} ${pad(e.date, 11)} ${[cell('Pes', 'pes'), cell('Ea', 'ea'), cell('Ees', 'ees'), cell('Ea/Ees', 'eaEes')].join('  ')}${missing}`);

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
 import { caveatsFor, STANDING_CAVEATS } from '../../src/assessment/caveats.js';
 import { THRESHOLDS, checkVisit } from '../../src/assessment/checks.js';
-import { computeResults } from '../../src/assessment/compute.js';
+import { computeResults } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 
 /** An unremarkable invented visit: no flag is raised for it. */
@@ -76,7 +76,7 @@ describe('validity flags: assumptions of the single-beat method (Chen 2001; comm
     // PEP 20, ET 400 → tNd 0.048.
     const inputs = parseInputs({ ...base, pep: 20, et: 400 });
     const r = computeResults(inputs);
-    expect(r.endAvg.value).toBeNull();
+    expect(r.normalizedElastanceAvg.value).toBeNull();
     expect(r.ees.value).toBeNull();
     expect(r.ees.reason).toMatch(/tNd 0\.048 is outside/);
     expect(checkVisit(inputs, r).map((f) => f.code)).toContain('ees-not-computable');

@@ -29,7 +29,7 @@ describe('mechanics of a visit: wall stress, energetics, diastolic side, loop', 
 
   it('energetics follow the linear elastance model: SW = Pes·SV, PE = Pes²/(2·Ees), SW/PVA = 1/(1 + Ea/(2·Ees)) (Suga; Burkhoff & Sagawa 1986)', () => {
     const a = run();
-    const { pes, sv, ees, ea } = a.results;
+    const { pes, svUsed: sv, ees, ea } = a.results;
     const e = a.mechanics!.energetics;
     expect(e.strokeWork.value).toBeCloseTo(pes.value! * sv.value!, 9);
     expect(e.potentialEnergy.value).toBeCloseTo(pes.value! ** 2 / (2 * ees.value!), 6);

@@ -6,7 +6,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { RESULT_KEYS, computeResults } from '../../src/assessment/compute.js';
+import { RESULT_KEYS, computeResults } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { SENSITIVITY_KEYS, assessUncertainty } from '../../src/assessment/uncertainty.js';
 
@@ -52,7 +52,7 @@ describe('uncertainty report properties (fast-check)', () => {
           const spread = report.outputs[key];
           if (!spread) continue;
           expect(spread.value, key).toBe(results[key].value);
-          expect(spread.ci95[0], key).toBeLessThanOrEqual(spread.ci95[1]);
+          expect(spread.interval95[0], key).toBeLessThanOrEqual(spread.interval95[1]);
           expect(spread.computableFraction).toBeGreaterThan(0);
           expect(spread.computableFraction).toBeLessThanOrEqual(1);
         }

@@ -1,5 +1,5 @@
 /**
- * Monte Carlo uncertainty: the kernel against computeResults, the spread of
+ * Monte Carlo uncertainty: the compiled draws against computeResults, the spread of
  * Ea = Pes/SV against first-order (delta-method) propagation, seeds, variance
  * shares, the not-computable fraction near the method's validity edges, the
  * method's own error (Chen 2001 abstract) and the noise of a change between
@@ -7,9 +7,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
-import { RESULT_KEYS, computeResults, defaultChoice } from '../../src/assessment/compute.js';
+import { compileDraws } from '../../src/assessment/graph/draws.js';
+import { RESULT_KEYS, computeResults, visitPlan } from '../../src/assessment/graph/index.js';
+import { GRAPH_INPUT_KEYS } from '../../src/assessment/graph/inputs.js';
+import { evaluatePlan, inputVector } from '../../src/assessment/graph/plan.js';
 import { parseInputs, type VisitInputs } from '../../src/assessment/inputs.js';
-import { OUTPUT_COUNT, OUTPUT_INDEX, evaluateDraw, fillNormals, interval95, kernelSetup, nominalVector, quantileInPlace, randomStreams, summarize } from '../../src/assessment/monte-carlo.js';
+import { fillNormals, interval95, quantileInPlace, randomStreams, summarize } from '../../src/assessment/monte-carlo.js';
 import { CHEN_CALIBRATION, DRAWS_RANGE, assessUncertainty, changeUncertainty, parseDraws, parseSeed, withIntervals, type Share } from '../../src/assessment/uncertainty.js';
 import { InputError } from '../../src/errors.js';
 
@@ -28,7 +31,7 @@ function onlyErrors(raw: Record<string, unknown>, errors: Record<string, string 
   return inputsOf({ ...raw, errors: { ...zero, ...errors } });
 }
 
-describe('the kernel re-composes computeResults exactly (same physiology functions)', () => {
+describe('the graph compiled for draws, fed the visit\'s own inputs, gives computeResults exactly (a check of the compiled form against the one-visit form of the same graph)', () => {
   const variants: [string, Record<string, unknown>][] = [
     ['all optional inputs, LVOT Doppler', FULL],
     ['Doppler SV entered, no height', WORKED],
@@ -42,10 +45,16 @@ describe('the kernel re-composes computeResults exactly (same physiology functio
     it(name, () => {
       const inputs = inputsOf(raw);
       const results = computeResults(inputs);
-      const out = new Float64Array(OUTPUT_COUNT);
-      evaluateDraw(kernelSetup(inputs, defaultChoice(inputs)), nominalVector(inputs), out);
+      const plan = visitPlan(inputs);
+      // Every input drawn (its column holding the visit's value), so every node is computed draw by draw.
+      const present = GRAPH_INPUT_KEYS.filter((k) => inputs[k] !== null);
+      const nominal = inputVector(inputs);
+      evaluatePlan(plan, nominal, []);
+      const program = compileDraws(plan, nominal, present, RESULT_KEYS, 2);
+      for (const k of present) program.input(k).fill(inputs[k]!);
+      program.run(2);
       for (const key of RESULT_KEYS) {
-        const v = out[OUTPUT_INDEX[key]]!;
+        const v = program.output(key)[1]!;
         expect(Number.isFinite(v) ? v : null, key).toBe(results[key].value);
       }
     });
@@ -123,8 +132,8 @@ describe('Ea = Pes/SV: Monte Carlo spread vs first-order (delta-method) propagat
   it('SV = EDV − ESV itself has the SD √(SD_EDV² + SD_ESV²) of a difference of independent errors (common practice), within 2 %', () => {
     const inputs = onlyErrors({ sbp: 130, dbp: 80, edv: 150, esv: 60, pep: 90, et: 290 }, { edv: 9, esv: 6 });
     const report = assessUncertainty(inputs, { draws: 100_000, seed: 2, sensitivity: false });
-    expect(report.outputs.sv!.sd / Math.hypot(9, 6)).toBeCloseTo(1, 1);
-    expect(Math.abs(report.outputs.sv!.sd / Math.hypot(9, 6) - 1)).toBeLessThan(0.02);
+    expect(report.outputs.svUsed!.sd / Math.hypot(9, 6)).toBeCloseTo(1, 1);
+    expect(Math.abs(report.outputs.svUsed!.sd / Math.hypot(9, 6) - 1)).toBeLessThan(0.02);
   });
 });
 
@@ -135,7 +144,7 @@ describe('reproducible and honest', () => {
     const b = assessUncertainty(inputs, { draws: 5000, seed: 42 });
     const c = assessUncertainty(inputs, { draws: 5000, seed: 43 });
     expect(b).toEqual(a);
-    expect(c.outputs.ees!.ci95).not.toEqual(a.outputs.ees!.ci95);
+    expect(c.outputs.ees!.interval95).not.toEqual(a.outputs.ees!.interval95);
     expect(Math.abs(c.outputs.ees!.sd / a.outputs.ees!.sd - 1)).toBeLessThan(0.1);
   });
   it('the main results stay identical to assess(); intervals are only attached', () => {
@@ -148,12 +157,12 @@ describe('reproducible and honest', () => {
       if (report.outputs[key]) expect(report.outputs[key].value, key).toBe(a.results[key].value);
     }
     for (const key of ['pes', 'ea', 'ees', 'eaEes', 'v0'] as const) {
-      const [low, high] = withCi[key].ci95!;
+      const [low, high] = withCi[key].interval95!;
       expect(low).toBeLessThan(high);
       expect(low).toBeLessThanOrEqual(a.results[key].value!);
       expect(high).toBeGreaterThanOrEqual(a.results[key].value!);
     }
-    expect(a.results.ea.ci95).toBeUndefined();
+    expect(a.results.ea.interval95).toBeUndefined();
   });
   it('no number in the report is NaN or infinite', () => {
     const text = JSON.stringify(assessUncertainty(inputsOf({ sbp: 140, dbp: 60, edv: 200, esv: 160, pep: 150, et: 150 }), { draws: 3000 }));
@@ -231,8 +240,8 @@ describe('draws in which Ees is not computable are counted, never dropped silent
   });
   it('results that are the same draws under another name share their spread (SV used = Doppler SV; TPR in two units)', () => {
     const report = assessUncertainty(inputsOf(FULL), { draws: 5000, sensitivity: false });
-    expect(report.outputs.svDoppler!.ci95).toEqual(report.outputs.sv!.ci95);
-    expect(report.outputs.tprDyn!.ci95[0]).toBeCloseTo(report.outputs.tpr!.ci95[0] * (1333.224 * 60) / 1000, 3);
+    expect(report.outputs.svDoppler!.interval95).toEqual(report.outputs.svUsed!.interval95);
+    expect(report.outputs.tprDyn!.interval95[0]).toBeCloseTo(report.outputs.tpr!.interval95[0] * (1333.224 * 60) / 1000, 3);
     expect(report.outputs.tprDyn!.value).toBe(computeResults(inputsOf(FULL)).tprDyn.value);
   });
   it('a comfortable subject: every draw computable', () => {
@@ -243,12 +252,12 @@ describe('draws in which Ees is not computable are counted, never dropped silent
 describe('the probability that Ea/Ees exceeds the published 1.2 cut-off (PubMed 19004668)', () => {
   it('is consistent with the interval and with the main value', () => {
     const low = assessUncertainty(inputsOf({ ...WORKED, errors: { pep: 3, et: 3, sbp: 2, dbp: 2, ef: 1 } }), { draws: 20_000 });
-    expect(low.outputs.eaEes!.ci95[1]).toBeLessThan(1.2);
+    expect(low.outputs.eaEes!.interval95[1]).toBeLessThan(1.2);
     expect(low.coupling.probabilityAbove).toBeLessThan(0.025);
     const high = inputsOf({ sbp: 110, dbp: 70, edv: 220, esv: 160, ef: 27, pep: 135, et: 220, errors: { pep: 3, et: 3, sbp: 2, dbp: 2, ef: 1 } });
     const r = assessUncertainty(high, { draws: 20_000 });
     expect(computeResults(high).eaEes.value).toBeGreaterThan(1.2);
-    expect(r.outputs.eaEes!.ci95[0]).toBeGreaterThan(1.2);
+    expect(r.outputs.eaEes!.interval95[0]).toBeGreaterThan(1.2);
     expect(r.coupling.probabilityAbove).toBeGreaterThan(0.975);
   });
 });
@@ -269,7 +278,7 @@ describe("the method's own error: Chen 2001 abstract, Ees = 0.86·Ees(sb) + 0.40
     const report = assessUncertainty(inputsOf(FULL), { draws: 20_000 });
     const width = (p: [number, number] | null) => p![1] - p![0];
     expect(width(report.methodError.eesCombined)).toBeGreaterThan(width(report.methodError.eesMethodOnly));
-    expect(width(report.methodError.eesCombined)).toBeGreaterThan(width(report.outputs.ees!.ci95));
+    expect(width(report.methodError.eesCombined)).toBeGreaterThan(width(report.outputs.ees!.interval95));
     expect(report.coupling.probabilityAboveWithMethodError).not.toBeNull();
   });
   it('is absent, not invented, when Ees is not computable', () => {
@@ -293,7 +302,7 @@ describe('change between two visits', () => {
       expect(c.observed).toBe(0);
       expect(c.exceeds).toBe(false);
       const noiseWidth = c.noise95![1] - c.noise95![0];
-      const singleWidth = single.outputs[key]!.ci95[1] - single.outputs[key]!.ci95[0];
+      const singleWidth = single.outputs[key]!.interval95[1] - single.outputs[key]!.interval95[0];
       expect(noiseWidth / singleWidth).toBeGreaterThan(Math.SQRT2 * 0.9);
       expect(noiseWidth / singleWidth).toBeLessThan(Math.SQRT2 * 1.1);
     }
@@ -305,9 +314,9 @@ describe('change between two visits', () => {
     const ea = change.changes.ea;
     expect(ea.observed).toBeCloseTo((0.9 * 175 - 0.9 * 110) / 70, 12);
     expect(ea.exceeds).toBe(true);
-    expect(ea.ci95![0]).toBeGreaterThan(0);
-    expect(ea.ci95![0]).toBeLessThan(ea.observed!);
-    expect(ea.ci95![1]).toBeGreaterThan(ea.observed!);
+    expect(ea.interval95![0]).toBeGreaterThan(0);
+    expect(ea.interval95![0]).toBeLessThan(ea.observed!);
+    expect(ea.interval95![1]).toBeGreaterThan(ea.observed!);
     expect(ea.source).toMatch(/measurement error only/);
   });
 });

@@ -13,7 +13,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
-import { computeResults } from '../../src/assessment/compute.js';
+import { computeResults } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 
 const raw = { sbp: 120, dbp: 80, hr: 60, edv: 130, esv: 55, ef: 60, sv: 70, pep: 90, et: 290 };
@@ -43,15 +43,15 @@ const endAvgTerms = [
   571.95 * tNd ** 6,
   -159.1 * tNd ** 7,
 ];
-const endAvg = endAvgTerms.reduce((a, b) => a + b, 0);
+const normalizedElastanceAvg = endAvgTerms.reduce((a, b) => a + b, 0);
 // ENd(est) = 0.0275 − 0.165·EF + 0.3656·DBP/Pes + 0.515·ENd(avg), EF = 0.60 (the REPORTED EF)
 //          = 0.0275 − 0.0990 + 0.3656 × 0.7407407 + 0.515 × 0.3361409
 //          = 0.0275 − 0.0990 + 0.2708148 + 0.1731125 = 0.3724274
-const endEst = 0.0275 - 0.165 * 0.6 + 0.3656 * (80 / pes) + 0.515 * endAvg;
+const normalizedElastanceEst = 0.0275 - 0.165 * 0.6 + 0.3656 * (80 / pes) + 0.515 * normalizedElastanceAvg;
 // Ees = [DBP − ENd(est)·Pes] / [ENd(est)·SV], SV = 70 mL (the DOPPLER SV, as in Chen 2001)
 //     = (80 − 0.3724274 × 108) / (0.3724274 × 70)
 //     = (80 − 40.2221548) / 26.0699151 = 39.7778452 / 26.0699151 = 1.5258141 mmHg/mL
-const ees = (80 - endEst * pes) / (endEst * 70);
+const ees = (80 - normalizedElastanceEst * pes) / (normalizedElastanceEst * 70);
 // Ea = Pes / SV = 108 / 70 = 1.5428571 mmHg/mL                          (Kelly 1992)
 const ea = pes / 70;
 // Ea/Ees = 1.5428571 / 1.5258141 = 1.0111698
@@ -68,8 +68,8 @@ describe('hand-worked single-beat example (method notes §4; Chen 2001 method, E
   it('the hand arithmetic reproduces the method notes to their printed digits', () => {
     expect(pes).toBe(108);
     expect(tNd).toBeCloseTo(0.23684, 5);
-    expect(endAvg).toBeCloseTo(0.33614, 5);
-    expect(endEst).toBeCloseTo(0.37243, 5);
+    expect(normalizedElastanceAvg).toBeCloseTo(0.33614, 5);
+    expect(normalizedElastanceEst).toBeCloseTo(0.37243, 5);
     expect(ees).toBeCloseTo(1.5258, 4);
     expect(ea).toBeCloseTo(1.5429, 4);
     expect(eaEes).toBeCloseTo(1.0112, 4);
@@ -81,8 +81,8 @@ describe('hand-worked single-beat example (method notes §4; Chen 2001 method, E
   it('computeResults on the parsed inputs gives every intermediate', () => {
     expect(results.pes.value).toBeCloseTo(pes, 10);
     expect(results.tNd.value).toBeCloseTo(tNd, 10);
-    expect(results.endAvg.value).toBeCloseTo(endAvg, 10);
-    expect(results.endEst.value).toBeCloseTo(endEst, 10);
+    expect(results.normalizedElastanceAvg.value).toBeCloseTo(normalizedElastanceAvg, 10);
+    expect(results.normalizedElastanceEst.value).toBeCloseTo(normalizedElastanceEst, 10);
     expect(results.ees.value).toBeCloseTo(ees, 10);
     expect(results.ea.value).toBeCloseTo(ea, 10);
     expect(results.eaEes.value).toBeCloseTo(eaEes, 10);
@@ -93,10 +93,10 @@ describe('hand-worked single-beat example (method notes §4; Chen 2001 method, E
   });
 
   it('the reported EF feeds ENd(est) and the Doppler SV feeds Ea and Ees; the volumes are shown beside them', () => {
-    expect(results.ef.value).toBe(60);
+    expect(results.efUsed.value).toBe(60);
     expect(results.efVolumes.value).toBeCloseTo((75 / 130) * 100, 10);
-    expect(results.sv.value).toBe(70);
-    expect(results.sv.method).toMatch(/Doppler/);
+    expect(results.svUsed.value).toBe(70);
+    expect(results.svUsed.method).toMatch(/Doppler/);
     expect(results.svVolumetric.value).toBe(75);
     expect(results.eesNoIntercept.value).toBeCloseTo(108 / 55, 10);
   });

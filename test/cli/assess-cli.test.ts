@@ -7,6 +7,7 @@ import { chmodSync, closeSync, existsSync, mkdtempSync, openSync, readFileSync, 
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { NUMERIC_FIELDS } from '../../src/assessment/fields.js';
 import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, plainEnv, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
 
 // The hand-worked single-beat example of ../shared/method-notes.md §4 (computed there, not published):
@@ -93,7 +94,7 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     const j = parseJson(await runCli(['assess', ...WORKED, '--hr', '64', '--json']));
     expect(j.format).toBe('elastimate-assessment');
     const units: Record<string, string> = {
-      pes: 'mmHg', map: 'mmHg', sv: 'mL', co: 'L/min', ea: 'mmHg/mL', tNd: '', endAvg: '', endEst: '', ees: 'mmHg/mL', eaEes: '', v0: 'mL',
+      pes: 'mmHg', map: 'mmHg', svUsed: 'mL', co: 'L/min', ea: 'mmHg/mL', tNd: '', normalizedElastanceAvg: '', normalizedElastanceEst: '', ees: 'mmHg/mL', eaEes: '', v0: 'mL',
     };
     for (const [key, unit] of Object.entries(units)) {
       const q = j.results[key];
@@ -112,16 +113,39 @@ describe('assess --json: the public contract (docs/json-output.md)', () => {
     const v = (k: string): number => r[k]!.value as number;
     expect(v('pes')).toBeCloseTo(108, 6); // 0.9 × SBP, Kelly 1992
     expect(v('map')).toBeCloseTo(80 + 40 / 3, 6); // DBP + PP/3, common practice
-    expect(v('sv')).toBeCloseTo(70, 6); // EDV − ESV
+    expect(v('svUsed')).toBeCloseTo(70, 6); // EDV − ESV
     expect(v('co')).toBeCloseTo((70 * 64) / 1000, 6); // SV × HR / 1000, common practice
     expect(v('tNd')).toBeCloseTo(0.23684, 5); // PEP / (PEP + ET), Chen 2001
-    expect(v('endAvg')).toBeCloseTo(0.33614, 5);
-    expect(v('endEst')).toBeCloseTo(0.37243, 5);
+    expect(v('normalizedElastanceAvg')).toBeCloseTo(0.33614, 5);
+    expect(v('normalizedElastanceEst')).toBeCloseTo(0.37243, 5);
     expect(v('ees')).toBeCloseTo(1.5258, 4);
     expect(v('ea')).toBeCloseTo(1.5429, 4);
     expect(v('eaEes')).toBeCloseTo(1.0112, 4);
     // V0 = ESV − Pes / Ees (Chen 2001 ESPVR), from the reported numbers themselves.
     expect(v('v0')).toBeCloseTo(50 - v('pes') / v('ees'), 6);
+  });
+
+  it('format version 2: no key outside the inputs equals an input key (results report values used as <key>Used)', async () => {
+    const run = await runCli(['assess', '--input', join(ROOT, 'cases', 'hypertension-trial.visit.json'), '--sv', '75', '--edp', '14', '--uncertainty', '--draws', '1000', '--json']);
+    const j = JSON.parse(run.stdout) as Record<string, unknown>;
+    expect(j.formatVersion).toBe(2);
+    const inputKeys = new Set(NUMERIC_FIELDS.map((f) => f.key));
+    const clashes: string[] = [];
+    const walk = (value: unknown, path: string): void => {
+      if (Array.isArray(value)) value.forEach((v, i) => walk(v, `${path}[${i}]`));
+      else if (value !== null && typeof value === 'object') {
+        for (const [k, v] of Object.entries(value)) {
+          if (inputKeys.has(k as never)) clashes.push(`${path}.${k}`);
+          walk(v, `${path}.${k}`);
+        }
+      }
+    };
+    for (const [k, v] of Object.entries(j)) if (k !== 'inputs' && k !== 'inputUnits') walk(v, k);
+    expect(clashes).toEqual([]);
+    const results = j.results as Record<string, unknown>;
+    expect(Object.keys(results)).toEqual(expect.arrayContaining(['svUsed', 'efUsed', 'normalizedElastanceAvg', 'normalizedElastanceEst']));
+    expect(JSON.stringify(j)).not.toMatch(/"ci95"|"endAvg"|"endEst"/);
+    expect((results.ea as { interval95?: unknown }).interval95).toHaveLength(2);
   });
 
   it('makes co null with a reason when the heart rate is missing, and keeps everything else', async () => {
@@ -144,7 +168,7 @@ describe('assess --input: a visit file, flags override it', () => {
     expect(overridden.inputs.hr).toBe(80);
     expect(overridden.inputs.edv).toBe(plain.inputs.edv);
     // CO scales with the overriding heart rate (SV × HR / 1000).
-    const sv = overridden.results.sv!.value as number;
+    const sv = overridden.results.svUsed!.value as number;
     expect(overridden.results.co!.value).toBeCloseTo((sv * 80) / 1000, 6);
   });
 

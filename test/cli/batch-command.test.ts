@@ -9,7 +9,7 @@ import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync, w
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { RESULT_KEYS } from '../../src/assessment/graph/index.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, ok } from './fixtures/run-cli.js';
 
@@ -43,8 +43,8 @@ describe('batch', () => {
 
   it('keeps the input columns and adds one column per result key named as the JSON keys, then flags, reasons, methods version and error', () => {
     const header = parse(run.stdout, { to_line: 1 })[0] as string[];
-    // The input has an `ef` column (EF as reported), so the EF used is in `ef_result`.
-    expect(header).toEqual([...HEADER, ...RESULT_KEYS.map((k) => (k === 'ef' ? 'ef_result' : k)), 'flags', 'notComputable', 'methodsVersion', 'error']);
+    // The input has an `ef` column (EF as reported); the EF used is the result `efUsed`, so no name is shared.
+    expect(header).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
     expect(rows.map((r) => r.participant)).toEqual(['HT-101', 'HT-102', 'HT-103', 'HT-104']);
     expect(rows[0]!.comment).toBe('baseline, fasting');
     expect(rows[2]!.comment).toBe('says "units"\nover two lines');
@@ -90,15 +90,15 @@ describe('batch', () => {
     expect(r.stderr).not.toMatch(/rows…/); // progress only on a terminal
   });
 
-  it('renames result columns whose names the input already uses (sv, ef) and says so on stderr', async () => {
+  it('keeps the Doppler SV as entered (`sv`) apart from the SV used (`svUsed`): no result column shares an input name', async () => {
     const withSv = join(dir, 'with-sv.csv');
     writeFileSync(withSv, 'sbp,dbp,edv,esv,pep,et,sv,ef\r\n120,80,120,50,90,290,72,60\r\n');
     const r = ok(await runCli(['batch', withSv]));
     const [row] = parse(r.stdout, { columns: true }) as Record<string, string>[];
     expect(row!.sv).toBe('72');
-    expect(row!.sv_result).toBe('72'); // Doppler SV feeds Ea and Ees when given (Chen 2001)
+    expect(row!.svUsed).toBe('72'); // Doppler SV feeds Ea and Ees when given (Chen 2001)
+    expect(row!.efUsed).toBe('60');
     expect(Number(row!.ea)).toBeCloseTo(108 / 72, 4);
-    expect(r.stderr).toMatch(/those results are in sv_result, ef_result/);
   });
 
   it('refuses, with exit 2, a missing file, an empty one, a header without measurement columns, and the input as output', async () => {

@@ -7,7 +7,7 @@ import { mkdtempSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { RESULT_KEYS } from '../../src/assessment/graph/index.js';
 import { decimalsFor } from '../../src/render/format.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, ok } from './fixtures/run-cli.js';
@@ -53,7 +53,8 @@ describe('export', () => {
     const header = csv.slice(0, csv.indexOf('\r\n')).split(',');
     expect(header.slice(0, 4)).toEqual(['subject', 'visit', 'date', 'note']);
     expect(header).toContain('ea');
-    expect(header).toContain('sv_result'); // the SV used, beside the Doppler SV as entered (`sv`)
+    expect(header).toContain('svUsed'); // the SV used, beside the Doppler SV as entered (`sv`)
+    expect(header).toContain('sv');
     expect(header.slice(-4)).toEqual(['flags', 'notComputable', 'methodsVersion', 'error']);
   });
 
@@ -75,7 +76,7 @@ describe('export', () => {
       const row = rows[i]!;
       for (const key of RESULT_KEYS) {
         const q = v.results[key]!;
-        const column = key === 'sv' || key === 'ef' ? `${key}_result` : key;
+        const column = key;
         if (q.value === null) expect(row[column], key).toBe('');
         else expect(Math.abs(Number(row[column]) - q.value), key).toBeLessThanOrEqual(0.5 * 10 ** -(decimalsFor(q.unit) + 2) + 1e-12);
       }

@@ -126,8 +126,8 @@ describe('collectInteractively: the whole flow from nothing', () => {
     const a = assess(parseInputs(raw));
     expect(a.inputs.et).toBeCloseTo(285, 9);
     expect(a.inputs.ef).toBeNull(); // EF left to the volumes
-    expect(a.results.ef.value).toBeCloseTo((70 / 120) * 100, 9);
-    expect(a.results.sv.value).toBeCloseTo(21 * Math.PI * 1.05 ** 2, 6); // Doppler SV, common practice
+    expect(a.results.efUsed.value).toBeCloseTo((70 / 120) * 100, 9);
+    expect(a.results.svUsed.value).toBeCloseTo(21 * Math.PI * 1.05 ** 2, 6); // Doppler SV, common practice
     expect(a.results.pes.value).toBeCloseTo(0.9 * 150, 9); // Kelly 1992
     expect(a.results.tNd.value).toBeCloseTo(95 / 380, 9);
     expect(a.results.co.value).toBeCloseTo((21 * Math.PI * 1.05 ** 2 * 70) / 1000, 6);
@@ -187,7 +187,7 @@ describe('collectInteractively: only what is missing', () => {
     expect(review).toEqual(expect.arrayContaining(['Brachial systolic pressure: 150 mmHg', 'Brachial diastolic pressure: 90 mmHg', 'Valve and outflow findings: aortic stenosis']));
     expect(raw).not.toHaveProperty('height');
     expect(raw).not.toHaveProperty('sv');
-    expect(assess(parseInputs(raw)).results.ef.value).toBe(55);
+    expect(assess(parseInputs(raw)).results.efUsed.value).toBe(55);
   });
 
   it('asks again for a given value that is refused, saying why', async () => {
@@ -289,7 +289,7 @@ describe('collectInteractively: the review screen', () => {
     expect(raw).not.toHaveProperty('sv');
     expect(raw).toMatchObject({ lvotDiameter: '2.0', lvotVti: 20, aorticStenosis: true, outflowObstruction: true, aorticRegurgitation: false, rhythm: 'other', ef: 61 });
     const a = assess(parseInputs(raw));
-    expect(a.results.sv.value).toBeCloseTo(20 * Math.PI, 9); // VTI × π(D/2)², D = 2 cm
+    expect(a.results.svUsed.value).toBeCloseTo(20 * Math.PI, 9); // VTI × π(D/2)², D = 2 cm
   });
 
   it('asks only for the missing half of the LVOT pair', async () => {

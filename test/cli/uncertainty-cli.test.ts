@@ -13,7 +13,7 @@ const FLAGS = ['--sbp', '120', '--dbp', '80', '--edv', '130', '--esv', '55', '--
 interface Quantity {
   value: number | null;
   unit: string;
-  ci95?: [number, number];
+  interval95?: [number, number];
 }
 interface Share {
   input: string;
@@ -59,21 +59,21 @@ beforeAll(() => {
 afterAll(() => rmSync(scratch, { recursive: true, force: true }));
 
 describe('assess --uncertainty --json', () => {
-  it('adds ci95 to the results, sensitivity shares and the uncertainty object; the values stay those of plain assess', async () => {
+  it('adds interval95 to the results, sensitivity shares and the uncertainty object; the values stay those of plain assess', async () => {
     const [withDraws, plain] = await Promise.all([
       runCli(['assess', '--input', VISIT, '--uncertainty', '--draws', '5000', '--json']),
       runCli(['assess', '--input', VISIT, '--json']),
     ]);
     const u = JSON.parse(ok(withDraws)) as UncertainJson;
     const p = JSON.parse(ok(plain)) as UncertainJson;
-    for (const key of ['pes', 'ea', 'ees', 'eaEes', 'v0', 'sv', 'tNd', 'endEst', 'co', 'tpr']) {
+    for (const key of ['pes', 'ea', 'ees', 'eaEes', 'v0', 'svUsed', 'tNd', 'normalizedElastanceEst', 'co', 'tpr']) {
       const q = u.results[key]!;
       expect(q.value, key).toBe(p.results[key]!.value);
-      expect(q.ci95, key).toHaveLength(2);
-      expect(q.ci95![0], key).toBeLessThanOrEqual(q.value!);
-      expect(q.ci95![1], key).toBeGreaterThanOrEqual(q.value!);
+      expect(q.interval95, key).toHaveLength(2);
+      expect(q.interval95![0], key).toBeLessThanOrEqual(q.value!);
+      expect(q.interval95![1], key).toBeGreaterThanOrEqual(q.value!);
     }
-    expect(p.results.ea!.ci95).toBeUndefined();
+    expect(p.results.ea!.interval95).toBeUndefined();
     for (const key of ['ees', 'eaEes']) {
       const shares = u.sensitivity[key]!;
       expect(shares.length).toBeGreaterThan(1);
@@ -93,7 +93,7 @@ describe('assess --uncertainty --json', () => {
     expect(u.uncertainty.probabilityEaEesAboveCutoff.cutoff).toBe(1.2);
     expect(u.uncertainty.probabilityEaEesAboveCutoff.measurementError).toBeGreaterThanOrEqual(0);
     expect(u.uncertainty.methodError.source).toMatch(/Chen/);
-    expect(u.uncertainty.methodError.ees.measurementOnly).toEqual(u.results.ees!.ci95);
+    expect(u.uncertainty.methodError.ees.measurementOnly).toEqual(u.results.ees!.interval95);
     expect(u.uncertainty.driver.advice).toMatch(/^Repeat the /);
   });
 
@@ -104,7 +104,7 @@ describe('assess --uncertainty --json', () => {
     const ra = JSON.parse(a.stdout) as UncertainJson;
     const rc = JSON.parse(ok(c)) as UncertainJson;
     expect(rc.results.ees!.value).toBe(ra.results.ees!.value);
-    expect(rc.results.ees!.ci95).not.toEqual(ra.results.ees!.ci95);
+    expect(rc.results.ees!.interval95).not.toEqual(ra.results.ees!.interval95);
   });
 
   it('error overrides from flags and from the visit file', async () => {
@@ -145,7 +145,7 @@ describe('record views use the same intervals', () => {
   interface Row {
     key: string;
     difference: number | null;
-    noise?: { ci95: [number, number]; exceeds: boolean; source: string };
+    noise?: { interval95: [number, number]; exceeds: boolean; source: string };
   }
   it('record compare --json: each change carries its 95 % interval and whether it exceeds the combined noise', async () => {
     const run = await runCli(['record', 'compare', SUBJECT, '1', '3', '--json']);
@@ -153,7 +153,7 @@ describe('record views use the same intervals', () => {
     for (const key of ['pes', 'ea', 'ees', 'eaEes']) {
       const row = rows.find((r) => r.key === key)!;
       expect(row.noise, key).toBeDefined();
-      const [low, high] = row.noise!.ci95;
+      const [low, high] = row.noise!.interval95;
       expect(low).toBeLessThanOrEqual(row.difference!);
       expect(high).toBeGreaterThanOrEqual(row.difference!);
       expect(row.noise!.exceeds).toBe(low > 0 || high < 0);
@@ -172,7 +172,7 @@ describe('record views use the same intervals', () => {
     const visits = (JSON.parse(ok(json)) as { visits: { results: Record<string, Quantity>; changeFromPrevious: { rows: Row[] } | null }[] }).visits;
     expect(visits.length).toBeGreaterThan(1);
     for (const v of visits) {
-      for (const key of ['pes', 'ea', 'ees', 'eaEes']) expect(v.results[key]!.ci95, key).toHaveLength(2);
+      for (const key of ['pes', 'ea', 'ees', 'eaEes']) expect(v.results[key]!.interval95, key).toHaveLength(2);
     }
     expect(visits[1]!.changeFromPrevious!.rows.find((r) => r.key === 'ees')!.noise).toBeDefined();
     expect(ok(text)).toMatch(/95 % ranges from measurement error\n.*\n {2}1 +\d{4}-\d\d-\d\d +Pes \d+ \(\d+ to \d+\) +Ea [\d.]+ \(/);

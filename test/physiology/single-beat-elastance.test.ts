@@ -6,8 +6,8 @@ import { endSystolicElastanceNoIntercept, endSystolicElastanceSingleBeat } from 
  * 2001;38:2028): E(es(sb)) = [P(d) − (E(Nd(est)) × P(s) × 0.9)] / (E(Nd(est)) × SV),
  * with P(s), P(d) the arm-cuff pressures and SV the echo-Doppler stroke volume.
  */
-function chenAbstract(ps: number, pd: number, endEst: number, sv: number): number {
-  return (pd - endEst * ps * 0.9) / (endEst * sv);
+function chenAbstract(ps: number, pd: number, normalizedElastanceEst: number, sv: number): number {
+  return (pd - normalizedElastanceEst * ps * 0.9) / (normalizedElastanceEst * sv);
 }
 
 describe('single-beat Ees (Chen 2001)', () => {

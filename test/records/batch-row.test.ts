@@ -2,11 +2,11 @@ import { parse } from 'csv-parse/sync';
 import { csvParseRows } from 'd3-dsv';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
-import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { RESULT_KEYS, RESULT_UNITS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { RecordPieces, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
-import { RESULT_UNITS, csvNumber, csvText } from '../../src/render/csv.js';
+import { csvNumber, csvText } from '../../src/render/csv.js';
 
 const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
 
@@ -17,7 +17,6 @@ describe('batch rows', () => {
     expect(layout.recognised.map((r) => r.column.key)).toEqual(['sbp', 'dbp', 'hr', 'edv', 'esv', 'pep', 'et', 'lvotDiameter', 'lvotVti', 'aorticStenosis', 'rhythm']);
     // Output: the input columns, then one column per result key named as the JSON keys, then the trailing columns.
     expect(layout.outputHeader).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
-    expect(layout.renamed).toEqual([]);
   });
 
   it('computes a row exactly as assess does', () => {
@@ -30,7 +29,7 @@ describe('batch rows', () => {
     const byName = Object.fromEntries(layout.outputHeader.map((h, i) => [h, out[i]]));
     for (const key of RESULT_KEYS) expect(byName[key]).toBe(csvNumber(a.results[key].value, a.results[key].unit));
     // Doppler SV from LVOT: π·(2.0/2)²·20 = 62.83 mL, which feeds Ea (Chen 2001 used Doppler SV).
-    expect(Number(byName.sv)).toBeCloseTo(Math.PI * 20, 2);
+    expect(Number(byName.svUsed)).toBeCloseTo(Math.PI * 20, 2);
     expect(byName.methodsVersion).toBe(METHODS_VERSION);
     expect(byName.error).toBe('');
   });
@@ -59,11 +58,11 @@ describe('batch rows', () => {
     expect(long[long.length - 1]).toMatch(/row has 15 cells but the header has 14/);
   });
 
-  it('renames a result column whose name an input column already uses (sv, ef), and says so', () => {
+  it('needs no renaming when inputs sv and ef are columns: the results are svUsed and efUsed', () => {
     const l = planBatch(['sbp', 'dbp', 'edv', 'esv', 'pep', 'et', 'sv', 'EF']);
-    expect(l.renamed).toEqual(['sv_result', 'ef_result']);
-    expect(l.outputHeader).toContain('sv_result');
-    expect(l.outputHeader.filter((h) => h === 'sv')).toHaveLength(1);
+    expect(l.outputHeader.filter((h) => h.toLowerCase() === 'sv' || h.toLowerCase() === 'ef')).toEqual(['sv', 'EF']);
+    expect(l.outputHeader).toContain('svUsed');
+    expect(l.outputHeader).toContain('efUsed');
   });
 
   it('refuses a header with repeated, empty or unusable names', () => {
@@ -71,7 +70,7 @@ describe('batch rows', () => {
     expect(() => planBatch(['sbp', '', 'dbp'])).toThrow(/column 2: missing; the header cell is empty/);
     expect(() => planBatch(['lvotVti', 'lvot-vti', 'sbp'])).toThrow(/names the same input as column "lvotVti"/);
     expect(() => planBatch(['name', 'value'])).toThrow(/no measurement columns recognised/);
-    expect(() => planBatch(['sbp', 'sv', 'sv_result'])).toThrow(/column "sv_result".*needs this name/);
+    expect(() => planBatch(['sbp', 'sv', 'svUsed'])).toThrow(/column "svUsed".*needs this name/);
   });
 });
 
@@ -121,7 +120,7 @@ describe('CSV cells', () => {
     expect(parse(text)).toEqual(rows);
   });
 
-  it('knows the unit of every result key (checked against computed results)', () => {
+  it('every result key has the unit its node declares (the graph is the one place units are decided)', () => {
     const a = assess(parseInputs({ sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, pep: 90, et: 290, height: 170, weight: 70 }));
     for (const key of RESULT_KEYS) expect(RESULT_UNITS[key], key).toBe(a.results[key].unit);
   });

@@ -13,7 +13,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
 import { checkVisit } from '../../src/assessment/checks.js';
-import { RESULT_KEYS } from '../../src/assessment/compute.js';
+import { RESULT_KEYS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { InputError } from '../../src/errors.js';

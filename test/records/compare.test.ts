@@ -149,7 +149,7 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
 
   it('renders an uncertainty interval when one is attached to a row', () => {
     const c2 = compareVisits(A, B);
-    row(c2, 'ees').noise = { ci95: [-0.2, 0.5], exceeds: false, source: 'Monte Carlo, 20000 draws' };
+    row(c2, 'ees').noise = { interval95: [-0.2, 0.5], exceeds: false, source: 'Monte Carlo, 20000 draws' };
     const file: SubjectFile = { format: 'elastimate-subject', schemaVersion: 1, subject: { id: 'HT-900' }, visits: [] };
     const text = renderComparison(file, { index: 1, date: '2024-01-01' }, { index: 2, date: '2024-04-01' }, c2);
     expect(text).toMatch(/input uncertainty: 95 % interval of the change -0.200 to \+0.500 mmHg\/mL; includes no change: within the uncertainty of the inputs\. Source: Monte Carlo, 20000 draws/);

@@ -48,9 +48,9 @@ describe('case-conference report, HTML (parsed with @xmldom/xmldom)', async () =
 
   it('shows the key results with their 95 % intervals from the uncertainty module', () => {
     const ea = model.visits[2]!.assessment.results.ea;
-    expect(ea.ci95).toBeDefined();
+    expect(ea.interval95).toBeDefined();
     const d = decimalsFor('mmHg/mL');
-    expect(html).toContain(`${formatNumber(ea.ci95![0], d)} to ${formatNumber(ea.ci95![1], d)}`);
+    expect(html).toContain(`${formatNumber(ea.interval95![0], d)} to ${formatNumber(ea.interval95![1], d)}`);
     expect(html).toMatch(/Probability Ea\/Ees &gt; 1\.2/);
     expect(html).toMatch(/2,000 draws, seed 7/);
   });

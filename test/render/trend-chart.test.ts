@@ -14,8 +14,8 @@ const SPEC: TrendChartSpec = {
   selectedIndex: 3,
   lsc: { logLimit: L, source: 'Chen 2001, CV 20.3 %' },
   points: [
-    { index: 1, date: '2024-01-15', value: 1.5, ci95: [1.1, 1.95] },
-    { index: 2, date: '2024-04-15', value: 0.8, ci95: [0.55, 1.1] },
+    { index: 1, date: '2024-01-15', value: 1.5, interval95: [1.1, 1.95] },
+    { index: 2, date: '2024-04-15', value: 0.8, interval95: [0.55, 1.1] },
     { index: 3, date: '2024-07-15', value: 1.2 },
     { index: 4, date: '2024-10-15', value: null, reason: 'tNd outside the validity window' },
   ],

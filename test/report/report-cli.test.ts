@@ -122,8 +122,12 @@ describe('elastimate assess --svg and --sketch', () => {
     expect(text.stdout).toMatch(/Pressure–volume sketch[\s\S]*└[\s\S]*mL/);
     const json = await runCli(['assess', ...VISIT, '--sketch', '--json']);
     expect(json.code).toBe(0);
-    const parsed = JSON.parse(json.stdout) as { mechanics: { diastolic: { edpSource: string }; energetics: { strokeWork: { value: number } } } };
+    const parsed = JSON.parse(json.stdout) as { mechanics: { diastolic: { edpSource: string; edpUsed: { value: number } }; loop: Record<string, unknown>; energetics: { strokeWork: { value: number } } } };
     expect(parsed.mechanics.diastolic.edpSource).toBe('entered');
+    // Values used for inputs carry the suffix Used: no result key equals an input key (edp, edv, esv).
+    expect(parsed.mechanics.diastolic.edpUsed.value).toBeGreaterThan(0);
+    expect(Object.keys(parsed.mechanics.loop)).toEqual(expect.arrayContaining(['edvUsed', 'esvUsed', 'edpUsed']));
+    expect(Object.keys(parsed.mechanics.loop)).not.toContain('edv');
     expect(parsed.mechanics.energetics.strokeWork.value).toBeGreaterThan(0);
     expect(json.stderr).toMatch(/Pressure–volume sketch/);
   });
