@@ -6,11 +6,11 @@
  */
 import { assess, type Assessment } from '../assessment/assess.js';
 import { parseInputs } from '../assessment/inputs.js';
-import { quantileInPlace } from '../assessment/monte-carlo.js';
 import { InputError, showValue, type InputProblem } from '../errors.js';
 import { ELASTANCE_SHAPES, DEFAULT_ELASTANCE_SHAPE, type ElastanceShape } from '../model/double-hill.js';
 import type { ScenarioChanges } from '../model/project.js';
 import { runScenario } from '../model/scenario.js';
+import { visitExtras } from '../model/subject-model.js';
 import {
   baselineFitState, chunksOf, INTERVAL_DRAWS, mergeChunks, scenarioChunk,
   type ChunkRequest, type ChunkResult, type ScenarioIntervals,
@@ -128,10 +128,11 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   let intervals: ScenarioIntervals | undefined;
   if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
     const warm = baselineFitState(result.fitted);
-    const requests = chunksOf(draws).map(({ chunk, draws: n }) => ({ inputs: a.inputs, changes, shape, warm, seed, chunk, draws: n }));
+    const extras = visitExtras(a);
+    const requests = chunksOf(draws).map(({ chunk, draws: n }) => ({ inputs: a.inputs, choice: a.choice, extras, changes, shape, warm, seed, chunk, draws: n }));
     const { splitOverThreads } = await import('./threads.js');
     const results = await splitOverThreads<ChunkRequest, ChunkResult>('scenario', requests, scenarioChunk);
-    intervals = mergeChunks(results, draws, seed, quantileInPlace);
+    intervals = mergeChunks(results, draws, seed);
   }
   const view = await import('../render/scenario.js');
   if (files && reportPath) {

@@ -51,10 +51,10 @@ async function nearTarget(path: unknown, visit: unknown): Promise<NearTarget> {
     a = series.find((e) => e.index === index)!.assessment;
   }
   const { inputs, results } = a;
-  if (inputs.hr === null || results.tNd.value === null || results.ef.value === null) {
+  if (inputs.hr === null || results.tNd.value === null || results.efUsed.value === null) {
     throw new InputError({ field: '--near', value: showValue(path), reason: 'the visit lacks heart rate or PEP and ET', accepted: 'a visit with heart rate, EF, PEP and ET' });
   }
-  return { ef: results.ef.value, sbp: inputs.sbp, dbp: inputs.dbp, hr: inputs.hr, edv: inputs.edv, tNd: results.tNd.value };
+  return { ef: results.efUsed.value, sbp: inputs.sbp, dbp: inputs.dbp, hr: inputs.hr, edv: inputs.edv, tNd: results.tNd.value };
 }
 
 export async function runSynthetic(opts: Record<string, unknown>): Promise<void> {

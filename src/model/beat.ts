@@ -31,6 +31,9 @@
  * Integration: fixed-step RK4, 0.5 ms (integrate.ts). Nothing here returns
  * NaN: a non-finite or absurd state ends the run with a reason.
  */
+import { arterialElastance } from '../physiology/arterial-elastance.js';
+import { cardiacOutput } from '../physiology/cardiac-output.js';
+import { ejectionFractionFromVolumes } from '../physiology/ejection-fraction.js';
 import { normalizedElastance, type ElastanceShape } from './double-hill.js';
 import { MODEL_STEP_MS, rk4Scratch, rk4Step, type Rk4Scratch } from './integrate.js';
 import { valveFlow } from './valves.js';
@@ -202,14 +205,14 @@ export function simulateBeat(m: HeartModel, grid: BeatGrid, start: ModelState, k
     edv: vMax,
     esv,
     sv,
-    ef: (100 * sv) / vMax,
+    ef: ejectionFractionFromVolumes(vMax, esv),
     edp: pAtVMax,
     sbp,
     dbp,
     map: paoSum / grid.steps,
     pes,
-    ea: pes / sv,
-    co: (sv * m.heartRate) / 1000,
+    ea: arterialElastance(pes, sv),
+    co: cardiacOutput(sv, m.heartRate),
     pep: openStep * stepMs,
     et: (closeStep - openStep) * stepMs,
     endSystole: es,

@@ -13,6 +13,7 @@
  *   unchanged, so EDV may move, e.g. with a shorter diastole).
  * Everything else is as fitted. No reflex, drug or valve effect is modelled.
  */
+import { couplingRatio } from '../physiology/coupling.js';
 import { potentialEnergy, pressureVolumeArea, strokeWork, mechanicalEfficiency } from '../physiology/energetics.js';
 import { simulateToSteadyState, type HeartModel, type ModelState, type SimulatedBeat } from './beat.js';
 import { systolicIntervalsAtHeartRate } from './systolic-intervals.js';
@@ -55,7 +56,7 @@ export function beatValues(beat: SimulatedBeat, model: HeartModel): ScenarioValu
   const e = energeticsOf(beat.pes, beat.sv, beat.esv, v0);
   return {
     sv: beat.sv, ef: beat.ef, edv: beat.edv, esv: beat.esv, sbp: beat.sbp, dbp: beat.dbp, pes: beat.pes,
-    ea: beat.ea, ees, eaEes: beat.ea / ees, co: beat.co, sw: e.sw, swPva: e.swPva, hr: model.heartRate,
+    ea: beat.ea, ees, eaEes: couplingRatio(beat.ea, ees), co: beat.co, sw: e.sw, swPva: e.swPva, hr: model.heartRate,
   };
 }
 

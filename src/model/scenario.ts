@@ -44,7 +44,7 @@ export function measuredValues(a: Assessment): ScenarioValues {
   const r = a.results;
   const e = a.mechanics?.energetics;
   return {
-    sv: r.sv.value, ef: r.ef.value, edv: a.inputs.edv, esv: a.inputs.esv, sbp: a.inputs.sbp, dbp: a.inputs.dbp,
+    sv: r.svUsed.value, ef: r.efUsed.value, edv: a.inputs.edv, esv: a.inputs.esv, sbp: a.inputs.sbp, dbp: a.inputs.dbp,
     pes: r.pes.value, ea: r.ea.value, ees: r.ees.value, eaEes: r.eaEes.value, co: r.co.value,
     sw: e?.strokeWork.value ?? null, swPva: e?.efficiency.value ?? null, hr: a.inputs.hr,
   };

@@ -1,25 +1,34 @@
 /**
- * One subject's model from plain numbers: the single-beat Ees and V0, the
- * measured EDV, stroke volume, cuff pressures, heart rate, PEP and ET, and the
- * diastolic curve. Pure; the numbers come today from `assess()` (see
- * numbersFromAssessment) and can come from any evaluator of the same
- * quantities.
+ * One subject's model from the graph of quantities (src/assessment/graph):
+ * the single-beat Ees, Pes, the stroke volume used, EDV, ESV, the cuff
+ * pressures, heart rate, PEP, ET, the peripheral resistance and the SV/PP
+ * compliance are read by their graph keys through one mapping
+ * (MODEL_GRAPH_KEYS, subjectNumbers), for the visit from its results and for
+ * each Monte Carlo draw from the graph's draw program (scenario-intervals.ts),
+ * so no formula of the graph is computed again here. The diastolic curve's
+ * EDP is not a graph quantity (entered or estimated from E/e′ in
+ * src/assessment/mechanics.ts, with no error in the error model): it is read
+ * once from the visit and held in every draw, the curve passing through each
+ * draw's EDV.
  *
  * Choices (docs/model.md):
- * - Emax = the single-beat Ees; V0 as estimated (ESV − Pes/Ees).
+ * - Emax = the single-beat Ees; V0 of the end-systolic line through
+ *   (EDV − SV, Pes), the end-systolic point the single-beat method assumes.
  * - Time to peak elastance, counted from the onset of contraction:
  *   Tpeak = PEP + ET − EMD, i.e. peak elastance at the measured aortic valve
  *   closure (end-systole ≈ time of Emax; Suga & Sagawa 1974).
- * - The passive curve: the subject's Klotz curve when the assessment has one
- *   (EDP entered or estimated from E/e′); otherwise the Klotz curve through
- *   (EDV, 10 mmHg), an assumed normal EDP, said so in the output.
+ * - The passive curve: the Klotz curve through (EDV, EDP) with the visit's
+ *   EDP (entered or estimated from E/e′); otherwise through (EDV, 10 mmHg),
+ *   an assumed normal EDP, said so in the output.
  * - Targets of the fit: EDV, the stroke volume the assessment uses (Doppler
  *   when given, else EDV − ESV), and the cuff SBP and DBP taken as the model's
  *   aortic pressures (brachial amplification is not modelled).
  */
 import { endDiastolicCurveFromOnePoint } from '../physiology/end-diastolic-pressure-volume.js';
-import { meanArterialPressure } from '../physiology/mean-arterial-pressure.js';
+import { volumeIntercept } from '../physiology/volume-intercept.js';
 import type { Assessment } from '../assessment/assess.js';
+import type { GraphInputKey } from '../assessment/graph/inputs.js';
+import type { ResultKey } from '../assessment/graph/registry.js';
 import { ELECTROMECHANICAL_DELAY_MS, type HeartModel } from './beat.js';
 import { DEFAULT_ELASTANCE_SHAPE, type ElastanceShape } from './double-hill.js';
 import type { FitTargets } from './fit.js';
@@ -29,6 +38,34 @@ import { windkesselStart } from './windkessel.js';
 
 /** EDP assumed when none is entered or estimated (a typical normal value; common practice). */
 export const ASSUMED_EDP_MMHG = 10;
+
+/** The graph quantity (input or node key) behind each number the model takes: the one mapping. */
+export const MODEL_GRAPH_KEYS = {
+  ees: 'ees',
+  pes: 'pes',
+  sv: 'svUsed',
+  edv: 'edv',
+  esv: 'esv',
+  sbp: 'sbp',
+  dbp: 'dbp',
+  hr: 'hr',
+  pep: 'pep',
+  et: 'et',
+  tpr: 'tpr',
+  compliance: 'compliance',
+  assessedV0: 'v0',
+} as const satisfies Record<string, GraphInputKey | ResultKey>;
+export type ModelQuantity = keyof typeof MODEL_GRAPH_KEYS;
+/** The graph nodes among them (what a draw program must compute). */
+export const MODEL_NODE_KEYS: readonly ResultKey[] = ['ees', 'pes', 'svUsed', 'tpr', 'compliance', 'v0'];
+
+/** What the model takes from the visit beyond the graph: sex (for the heart-rate regressions) and the diastolic curve's EDP. */
+export interface VisitExtras {
+  sex: 'male' | 'female' | null;
+  /** EDP the diastolic curve passes through (null: none known) */
+  edp: number | null;
+  edpSource: 'entered' | 'estimated' | 'none';
+}
 
 export interface SubjectNumbers {
   ees: number | null;
@@ -46,6 +83,10 @@ export interface SubjectNumbers {
   hr: number | null;
   pep: number;
   et: number;
+  /** total peripheral resistance, WU (the graph's MAP/CO) */
+  tpr: number | null;
+  /** SV/PP, mL/mmHg (the graph's compliance) */
+  compliance: number | null;
   sex: 'male' | 'female' | null;
   /** EDP the diastolic curve passes through (null: none known) */
   edp: number | null;
@@ -63,33 +104,69 @@ export interface SubjectSetup {
 }
 export type SubjectSetupOutcome = SubjectSetup | { ok: false; reason: string };
 
-export function numbersFromAssessment(a: Assessment): SubjectNumbers {
-  const { inputs, results, mechanics } = a;
-  const curve = mechanics?.diastolic.curve ?? null;
-  const sv = results.sv.value ?? inputs.edv - inputs.esv;
-  const ees = results.ees.value;
-  const pes = results.pes.value;
+/** A graph value by key: a number, or NaN (or null) when not computable. */
+export type GraphReader = (key: GraphInputKey | ResultKey) => number | null;
+
+function finite(x: number | null): number | null {
+  return x !== null && x - x === 0 ? x : null;
+}
+
+/**
+ * The model's numbers from graph values: the one mapping, used for the visit
+ * (graphReaderOf) and for every Monte Carlo draw. Absent values stay NaN in
+ * the required fields, which subjectSetup refuses.
+ */
+export function subjectNumbers(read: GraphReader, extras: VisitExtras, eesReason?: string): SubjectNumbers {
+  const get = (q: ModelQuantity): number | null => finite(read(MODEL_GRAPH_KEYS[q]));
+  const need = (q: ModelQuantity): number => get(q) ?? Number.NaN;
+  const ees = get('ees');
+  const pes = get('pes');
+  const sv = need('sv');
+  const edv = need('edv');
   const n: SubjectNumbers = {
     ees,
     // The end-systolic line through the end-systolic point of the single-beat method itself:
-    // Chen 2001 takes end-systole at EDV − SV with the SV it is given, so V0 = EDV − SV − Pes/Ees.
+    // Chen 2001 takes end-systole at EDV − SV with the SV it is given, so V0 = (EDV − SV) − Pes/Ees.
     // With a volumetric SV this is the assessment's V0 (ESV − Pes/Ees) exactly.
-    v0: ees !== null && pes !== null && ees > 0 ? inputs.edv - sv - pes / ees : null,
-    assessedV0: results.v0.value,
-    edv: inputs.edv,
-    esv: inputs.esv,
+    v0: ees !== null && pes !== null && ees > 0 ? finite(volumeIntercept(edv - sv, pes, ees)) : null,
+    assessedV0: get('assessedV0'),
+    edv,
+    esv: need('esv'),
     sv,
-    sbp: inputs.sbp,
-    dbp: inputs.dbp,
-    hr: inputs.hr,
-    pep: inputs.pep,
-    et: inputs.et,
-    sex: inputs.sex,
-    edp: curve ? curve.edp : null,
-    edpSource: curve ? (mechanics!.diastolic.edpSource === 'entered' ? 'entered' : 'estimated') : 'none',
+    sbp: need('sbp'),
+    dbp: need('dbp'),
+    hr: get('hr'),
+    pep: need('pep'),
+    et: need('et'),
+    tpr: get('tpr'),
+    compliance: get('compliance'),
+    sex: extras.sex,
+    edp: extras.edp,
+    edpSource: extras.edpSource,
   };
-  if (results.ees.reason) n.eesReason = results.ees.reason;
+  if (eesReason) n.eesReason = eesReason;
   return n;
+}
+
+/** Reads a visit's graph values: inputs as used, nodes from its results. */
+export function graphReaderOf(a: Assessment): GraphReader {
+  const inputs = a.inputs as unknown as Record<string, number | null>;
+  const results = a.results as Record<string, { value: number | null }>;
+  return (key) => (key in results ? results[key]!.value : (inputs[key] ?? null));
+}
+
+/** What the model takes from a visit beyond the graph. */
+export function visitExtras(a: Assessment): VisitExtras {
+  const curve = a.mechanics?.diastolic.curve ?? null;
+  return {
+    sex: a.inputs.sex,
+    edp: curve ? curve.edp : null,
+    edpSource: curve ? (a.mechanics!.diastolic.edpSource === 'entered' ? 'entered' : 'estimated') : 'none',
+  };
+}
+
+export function numbersFromAssessment(a: Assessment): SubjectNumbers {
+  return subjectNumbers(graphReaderOf(a), visitExtras(a), a.results.ees.reason);
 }
 
 /** The model's fixed parts and first guess, or why no model can be built. */
@@ -97,6 +174,9 @@ export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_
   if (n.ees === null || n.v0 === null) return { ok: false, reason: `Ees is not computable for this visit (${n.eesReason ?? 'no single-beat Ees'}), so the ventricle has no end-systolic line` };
   if (!(n.ees > 0)) return { ok: false, reason: 'Ees is not positive' };
   if (n.hr === null) return { ok: false, reason: 'the model needs the heart rate (--hr)' };
+  if (![n.edv, n.esv, n.sv, n.sbp, n.dbp, n.pep, n.et].every((x) => x - x === 0) || n.tpr === null || n.compliance === null) {
+    return { ok: false, reason: 'the model needs EDV, ESV, the stroke volume, SBP, DBP, PEP, ET and the resistance and compliance computed from them' };
+  }
   if (!(n.sv > 0 && n.sv < n.edv)) return { ok: false, reason: `the stroke volume ${n.sv.toFixed(0)} mL is not between 0 and EDV ${n.edv.toFixed(0)} mL` };
   if (!(n.edv - n.sv > n.v0)) {
     return { ok: false, reason: `V0 ${n.v0.toFixed(0)} mL lies above the end-systolic volume the fit needs (EDV − SV = ${(n.edv - n.sv).toFixed(0)} mL): no positive end-systolic pressure` };
@@ -120,15 +200,13 @@ export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_
   const curve = endDiastolicCurveFromOnePoint(n.edv, edp);
   if (curve.curve === null) return { ok: false, reason: `no diastolic filling curve: ${curve.reason}` };
   const passive = { alpha: curve.curve.alpha, beta: curve.curve.beta };
-  const map = meanArterialPressure(n.sbp, n.dbp);
-  const co = (n.sv * n.hr) / 1000;
   const model: HeartModel = {
     ventricle: { ees: n.ees, v0: n.v0, passive },
     heartRate: n.hr,
     timeToPeak,
     electromechanicalDelay: ELECTROMECHANICAL_DELAY_MS,
     shape,
-    arteries: windkesselStart(map, co, n.sv, n.sbp - n.dbp),
+    arteries: windkesselStart(n.tpr, n.compliance),
     sourcePressure: edp,
     inflowResistance: INFLOW_RESISTANCE,
   };

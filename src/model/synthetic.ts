@@ -26,7 +26,7 @@
  * estimator look good.
  */
 import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
-import { assess } from '../assessment/assess.js';
+import { computeResults } from '../assessment/graph/index.js';
 import { parseInputs } from '../assessment/inputs.js';
 import { randomStreams } from '../assessment/monte-carlo.js';
 import { InputError } from '../errors.js';
@@ -155,15 +155,16 @@ export function syntheticRow(id: number, h: VirtualHeart, shape: ElastanceShape,
   }
   try {
     const round = (x: number, d: number) => Number(x.toFixed(d));
-    const a = assess(parseInputs({
+    // The single-beat estimator is the graph of quantities, as for any visit.
+    const results = computeResults(parseInputs({
       sbp: round(b.sbp, 1), dbp: round(b.dbp, 1), hr: round(h.hr, 1), edv: round(b.edv, 1), esv: round(b.esv, 1),
       ef: round(b.ef, 1), pep: round(b.pep, 1), et: round(b.et, 1),
     }));
-    row.estimatedEes = a.results.ees.value;
-    row.tNd = a.results.tNd.value;
-    row.ea = a.results.ea.value;
-    row.eaEes = a.results.eaEes.value;
-    if (a.results.ees.reason) row.reason = a.results.ees.reason;
+    row.estimatedEes = results.ees.value;
+    row.tNd = results.tNd.value;
+    row.ea = results.ea.value;
+    row.eaEes = results.eaEes.value;
+    if (results.ees.reason) row.reason = results.ees.reason;
   } catch (err) {
     if (!(err instanceof InputError)) throw err;
     row.reason = `${OUTSIDE_INPUTS}: ${err.message.split('\n')[0]}`;

@@ -14,13 +14,17 @@
  * R ≈ Pao,mean/CO). Units: pressure mmHg, flow mL/s, R and Zc mmHg·s/mL,
  * C mL/mmHg.
  *
- * Starting values from the visit (crude, refined by the fit):
- *   R = MAP / CO,  C = SV / PP (the stroke-volume-over-pulse-pressure
- *   estimate, known to overestimate C; method-notes §13, from memory),
- *   Zc = 0.05·R (Zc is about 5–10 % of R in adults; from memory).
- * Worked example: MAP 93.3 mmHg, CO 4.9 L/min → R = 93.3/(4900/60) = 1.143
+ * Starting values from the visit's graph of quantities (crude, refined by the fit):
+ *   R = the total peripheral resistance MAP/CO (node `tpr`, in WU =
+ *   mmHg·min/L, × 60/1000 to mmHg·s/mL), C = SV/PP (node `compliance`, the
+ *   stroke-volume-over-pulse-pressure estimate, known to overestimate C;
+ *   method-notes §13, from memory), Zc = 0.05·R (Zc is about 5–10 % of R in
+ *   adults; from memory).
+ * Worked example: MAP 93.3 mmHg, CO 4.9 L/min → 19.04 WU → R = 1.143
  * mmHg·s/mL; SV 70 mL, PP 40 mmHg → C 1.75 mL/mmHg; Zc 0.057 mmHg·s/mL.
  */
+
+import { woodUnitsToMmHgSecondPerMl } from '../physiology/peripheral-resistance.js';
 
 export interface WindkesselParameters {
   /** peripheral resistance, mmHg·s/mL */
@@ -39,8 +43,8 @@ export function compliancePressureRate(w: WindkesselParameters, compliancePressu
   return (inflow - compliancePressure / w.resistance) / w.compliance;
 }
 
-/** Starting Windkessel from MAP (mmHg), CO (L/min), SV (mL) and pulse pressure (mmHg). */
-export function windkesselStart(map: number, cardiacOutputLMin: number, strokeVolume: number, pulsePressure: number): WindkesselParameters {
-  const resistance = map / ((cardiacOutputLMin * 1000) / 60);
-  return { resistance, compliance: strokeVolume / pulsePressure, characteristicImpedance: ZC_FRACTION_START * resistance };
+/** Starting Windkessel from the peripheral resistance (WU) and the SV/PP compliance (mL/mmHg). */
+export function windkesselStart(resistanceWoodUnits: number, compliance: number): WindkesselParameters {
+  const resistance = woodUnitsToMmHgSecondPerMl(resistanceWoodUnits);
+  return { resistance, compliance, characteristicImpedance: ZC_FRACTION_START * resistance };
 }
