@@ -44,6 +44,7 @@ export function buildProgram(): Command {
     .option('--seed <n>', 'seed of the Monte Carlo draws, 0–4294967295 (default 1); implies --uncertainty')
     .option('--svg <file>', 'also write the estimated pressure–volume diagram as SVG')
     .option('--sketch', 'also print a compact text drawing of the pressure–volume diagram')
+    .option('--model-loop', 'overlay on --svg/--sketch the simulated loop of the model fitted to this visit (docs/model.md)')
     .action(async (opts: Record<string, unknown>, cmd: Command) => {
       const { runAssess } = await import('./assess-command.js');
       await runAssess(opts, inputFileOf(cmd));
@@ -71,6 +72,7 @@ export function buildProgram(): Command {
     .option('--format <format>', 'html or md (default from the --out file name, else html)')
     .option('--draws <n>', 'Monte Carlo draws for the intervals, 1000–500000 (default 20000)')
     .option('--seed <n>', 'seed of the Monte Carlo draws (default 1)')
+    .option('--model-loop', 'overlay on the diagram the simulated loop of the model fitted to the reported visit (docs/model.md)')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runReport } = await import('./report-command.js');
       await runReport(file, opts);
