@@ -6,6 +6,7 @@
  */
 import { assess, type Assessment } from '../assessment/assess.js';
 import { parseInputs } from '../assessment/inputs.js';
+import { parseSeed } from '../assessment/uncertainty.js';
 import { InputError, showValue, type InputProblem } from '../errors.js';
 import { ELASTANCE_SHAPES, DEFAULT_ELASTANCE_SHAPE, type ElastanceShape } from '../model/double-hill.js';
 import type { ScenarioChanges } from '../model/project.js';
@@ -82,10 +83,14 @@ export function drawsFromOption(raw: unknown): number {
   return v;
 }
 
+/** `--seed`: the seed of the assessment's Monte Carlo (uncertainty.ts parseSeed: same range), named as the flag. */
 export function seedFromOption(raw: unknown): number {
-  const v = typeof raw === 'string' && /^\d+$/.test(raw.trim()) ? Number(raw) : Number.NaN;
-  if (!(v >= 0 && v <= 4_294_967_295)) throw new InputError({ field: '--seed', value: showValue(raw), accepted: 'a whole number, 0–4294967295' });
-  return v;
+  try {
+    return parseSeed(raw);
+  } catch (err) {
+    if (err instanceof InputError) throw new InputError(err.problems.map((p) => ({ ...p, field: '--seed' })));
+    throw err;
+  }
 }
 
 async function visitAssessment(opts: Record<string, unknown>, inputFile: string | undefined): Promise<Assessment> {

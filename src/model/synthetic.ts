@@ -34,7 +34,7 @@ import { endDiastolicCurveFromOnePoint } from '../physiology/end-diastolic-press
 import { ELECTROMECHANICAL_DELAY_MS, simulateToSteadyState, type HeartModel } from './beat.js';
 import type { ElastanceShape } from './double-hill.js';
 import { INFLOW_RESISTANCE } from './valves.js';
-import { virtualOcclusion } from './virtual-occlusion.js';
+import { centredMoments, virtualOcclusion } from './virtual-occlusion.js';
 
 export const VIRTUAL_RANGES = {
   emax: [0.5, 5],
@@ -224,18 +224,10 @@ export function agreement(rows: readonly SyntheticRow[], reference: 'trueEes' | 
   const n = pairs.length;
   if (n < 2) return { n: rows.length, computable: n, bias: null, loa: null, r: null, failures };
   const d = pairs.map(([e, t]) => e - t);
-  const bias = d.reduce((a, b) => a + b, 0) / n;
-  const sd = Math.sqrt(d.reduce((a, b) => a + (b - bias) ** 2, 0) / (n - 1));
-  const mx = pairs.reduce((a, [e]) => a + e, 0) / n;
-  const my = pairs.reduce((a, [, t]) => a + t, 0) / n;
-  let sxy = 0;
-  let sxx = 0;
-  let syy = 0;
-  for (const [e, t] of pairs) {
-    sxy += (e - mx) * (t - my);
-    sxx += (e - mx) ** 2;
-    syy += (t - my) ** 2;
-  }
+  const differences = centredMoments(d, d);
+  const bias = differences.mx;
+  const sd = Math.sqrt(differences.sxx / (n - 1));
+  const { sxx, syy, sxy } = centredMoments(pairs.map(([e]) => e), pairs.map(([, t]) => t));
   const r = sxx > 0 && syy > 0 ? sxy / Math.sqrt(sxx * syy) : null;
   return { n: rows.length, computable: n, bias, loa: [bias - 1.96 * sd, bias + 1.96 * sd], r, failures };
 }

@@ -25,18 +25,28 @@ export interface LineFit {
   v0: number;
 }
 
-/** Ordinary least squares of y on x; null when x does not vary. */
-export function leastSquaresLine(xs: readonly number[], ys: readonly number[]): { slope: number; intercept: number } | null {
+/** Means and centred sums of squares and cross-products of paired values (n ≥ 1): the one place they are computed. */
+export function centredMoments(xs: readonly number[], ys: readonly number[]): { n: number; mx: number; my: number; sxx: number; syy: number; sxy: number } {
   const n = xs.length;
-  if (n < 2) return null;
   const mx = xs.reduce((a, b) => a + b, 0) / n;
   const my = ys.reduce((a, b) => a + b, 0) / n;
   let sxx = 0;
+  let syy = 0;
   let sxy = 0;
   for (let i = 0; i < n; i++) {
-    sxx += (xs[i]! - mx) ** 2;
-    sxy += (xs[i]! - mx) * (ys[i]! - my);
+    const dx = xs[i]! - mx;
+    const dy = ys[i]! - my;
+    sxx += dx * dx;
+    syy += dy * dy;
+    sxy += dx * dy;
   }
+  return { n, mx, my, sxx, syy, sxy };
+}
+
+/** Ordinary least squares of y on x; null when x does not vary. */
+export function leastSquaresLine(xs: readonly number[], ys: readonly number[]): { slope: number; intercept: number } | null {
+  if (xs.length < 2) return null;
+  const { mx, my, sxx, sxy } = centredMoments(xs, ys);
   if (!(sxx > 1e-9)) return null;
   const slope = sxy / sxx;
   return { slope, intercept: my - slope * mx };
