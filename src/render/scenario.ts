@@ -45,7 +45,12 @@ export function scenarioToJson(r: ScenarioResult, toolVersion: string, intervals
     changes: r.changes,
   };
   if (r.projectionReason) out.projectionReason = r.projectionReason;
-  if (intervals) out.intervals = { draws: intervals.draws, seed: intervals.seed, succeeded: intervals.succeeded, failed: intervals.failures };
+  if (intervals) {
+    out.intervals = {
+      draws: intervals.draws, seed: intervals.seed, succeeded: intervals.succeeded, failed: intervals.failures,
+      method: `the first ${intervals.draws} draws of assess --uncertainty with seed ${intervals.seed}: the visit's error model, one stream per input (docs/uncertainty.md); each draw refitted and projected`,
+    };
+  }
   out.notes = r.notes;
   out.cautions = [...SCENARIO_CAUTIONS, ...STANDING_CAVEATS];
   return out;
@@ -89,7 +94,7 @@ export function renderScenario(r: ScenarioResult, options: { style?: Style; inte
   if (r.projectionReason) out.push(...wrap(`No projection: ${r.projectionReason}.`, width - 2).map((l) => '  ' + l));
   if (iv) {
     const failed = FAILURE_KINDS.filter((k) => iv.failures[k] > 0).map((k) => `${iv.failures[k]} ${FAILURE_WORDS[k]}`);
-    out.push(...wrap(`Intervals: ${iv.draws} Monte Carlo draws over the input uncertainty (seed ${iv.seed}), each fit warm-started from this one; ${iv.succeeded} used${failed.length ? `, ${failed.join(', ')}` : ', none failed'}.`, width - 2).map((l) => '  ' + l));
+    out.push(...wrap(`Intervals: ${iv.draws} Monte Carlo draws over the input measurement error, the first ${iv.draws} draws of assess --uncertainty with seed ${iv.seed} (docs/uncertainty.md), each fit warm-started from this one; ${iv.succeeded} used${failed.length ? `, ${failed.join(', ')}` : ', none failed'}.`, width - 2).map((l) => '  ' + l));
   }
   out.push('');
   out.push(s.heading('Cautions'));
