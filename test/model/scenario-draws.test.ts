@@ -11,7 +11,10 @@ import { assessUncertainty } from '../../src/assessment/uncertainty.js';
 import { interval95 } from '../../src/assessment/monte-carlo.js';
 import { runScenario } from '../../src/model/scenario.js';
 import { baselineFitState, chunksOf, drawnSubjectNumbers, mergeChunks, scenarioChunk, type ScenarioIntervals } from '../../src/model/scenario-intervals.js';
-import { visitExtras } from '../../src/model/subject-model.js';
+import { numbersFromAssessment, subjectSetup, visitExtras } from '../../src/model/subject-model.js';
+import { createRequire } from 'node:module';
+
+const math = createRequire(import.meta.url)('mathjs') as typeof import('mathjs');
 
 // Invented visit (demo data): a hypertensive adult with Doppler SV.
 const VISIT: RawInputs = { sbp: 150, dbp: 93, hr: 68, edv: 118, esv: 46, ef: 61, lvotDiameter: 2.1, lvotVti: 21, pep: 95, et: 285, sex: 'male', eOverEPrime: 11 };
@@ -53,5 +56,19 @@ describe('scenario intervals draw their inputs as assess --uncertainty does', ()
     const without = intervals({ ...VISIT, errors: { dbp: 0 } }, 40, 3).interval95.dbp!;
     expect(without).not.toEqual(withError);
     expect(without[1] - without[0]).toBeLessThan(0.6 * (withError[1] - withError[0]));
+  });
+});
+
+describe('wiring (values held against the graph\'s own results: a check of the mapping, not of a formula)', () => {
+  it('the model starts from the graph\'s Ees, stroke volume used, TPR (converted by mathjs to mmHg·s/mL) and SV/PP compliance, and its V0 is the end-systolic line through EDV − SV at Pes', () => {
+    const a = assess(parseInputs(VISIT));
+    const setup = subjectSetup(numbersFromAssessment(a), 'hill-b');
+    if (!setup.ok) throw new Error(setup.reason);
+    const r = a.results;
+    expect(setup.model.ventricle.ees).toBe(r.ees.value);
+    expect(setup.targets.sv).toBe(r.svUsed.value);
+    expect(setup.model.arteries.resistance).toBeCloseTo(r.tpr.value! * math.unit('1 mmHg minute / L').toNumber('mmHg s / mL'), 12);
+    expect(setup.model.arteries.compliance).toBe(r.compliance.value);
+    expect(setup.model.ventricle.v0).toBeCloseTo(118 - r.svUsed.value! - r.pes.value! / r.ees.value!, 10);
   });
 });
