@@ -79,7 +79,7 @@ export function pvDiagramSvg(m: ReportModel): string {
 export function modelLoopCaption(m: ReportModel): string {
   if (!m.modelLoop) return '';
   return m.modelLoop.points.length > 1
-    ? ' The dashed green loop is a model loop: simulated by a model fitted to this visit (docs/model.md), not measured; its fit and cautions are printed under the diagram.'
+    ? ' The dashed green loop is a model loop: simulated by a model fitted to the reported visit (docs/model.md), not measured; its fit and cautions are printed under the diagram.'
     : ` ${m.modelLoop.notes[0] ?? ''}`;
 }
 
