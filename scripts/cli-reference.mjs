@@ -23,7 +23,8 @@ const text = [
   'Examples are in README.md; file formats in the other pages of docs/.',
   '',
   'Exit codes: 0 success; 2 bad input (one message naming the field, the value and what is accepted);',
-  '130 left with Ctrl-C at a prompt; 1 an internal error (please report it).',
+  '3 a file could not be written or changed (disk full, permission denied, read-only, immutable; nothing changed);',
+  '130 left with Ctrl-C at a prompt; 1 an internal error (please report it). Table: docs/files.md.',
   '',
   ...sections(buildProgram(), 'elastimate'),
 ].join('\n');

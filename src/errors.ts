@@ -51,3 +51,59 @@ export function showValue(v: unknown): string {
     return String(v);
   }
 }
+
+/**
+ * A file the command needs could not be read or written for a reason of the
+ * system, not of the input: a full disk, permission denied, a read-only file
+ * system, an immutable file. The CLI prints its one-line message and exits
+ * with EXIT_FILE_FAULT (docs/files.md); the file it names is unchanged and no
+ * temporary file is left behind.
+ */
+export const EXIT_FILE_FAULT = 3;
+
+export class FileFault extends Error {
+  /** The file as the user named it (or as the tool derived it, e.g. a backup). */
+  readonly path: string;
+  /** The system's error code, e.g. ENOSPC; '' when the refusal is the tool's own (a read-only mode). */
+  readonly code: string;
+
+  constructor(path: string, doing: string, cause: string, code = '', outcome = 'nothing was changed') {
+    super(`${JSON.stringify(path)}: ${doing}: ${cause}${code ? ` (${code})` : ''}; ${outcome}`);
+    this.name = 'FileFault';
+    this.path = path;
+    this.code = code;
+  }
+}
+
+/** The cause of a file-system error in plain words. */
+export function plainCause(code: string | undefined): string {
+  switch (code) {
+    case 'ENOSPC':
+      return 'the disk is full';
+    case 'EDQUOT':
+      return 'the disk quota is used up';
+    case 'EACCES':
+      return 'permission denied';
+    case 'EPERM':
+      return 'the system does not allow the change; the file or its folder may be marked immutable';
+    case 'EROFS':
+      return 'the file system is read-only';
+    case 'EIO':
+      return 'the disk reported an input/output error';
+    case 'ENOENT':
+      return 'the file or its folder does not exist';
+    case 'ENOTDIR':
+      return 'a part of the path is not a folder';
+    case 'EISDIR':
+      return 'it is a folder';
+    case 'ENAMETOOLONG':
+      return 'the file name is too long';
+    case 'EMFILE':
+    case 'ENFILE':
+      return 'too many files are open';
+    case 'EBUSY':
+      return 'the file is busy';
+    default:
+      return 'the system refused';
+  }
+}

@@ -57,7 +57,7 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
   const modelLoop = diagrams ? await diagrams.modelLoopOption(opts, result) : undefined;
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, modelLoop);
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputFile ? [inputFile] : [], modelLoop);
   if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts);
   else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true, modelLoop);

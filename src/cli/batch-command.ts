@@ -9,20 +9,18 @@
  * megabyte or more is shared with worker threads (batch-worker.ts; one fewer
  * than the cores, at most three): a piece goes to a worker that has room, or
  * is computed on the main thread meanwhile. A bad row gets its reason in the
- * error column and the run goes on. `--out` goes to a temporary file beside
- * the target (mode 0600), fsynced and renamed over the target only when the
- * whole run succeeded. Progress goes to stderr, on a terminal only.
+ * error column and the run goes on. `--out` goes through io/safe-write.ts:
+ * a temporary file beside the target (mode 0600), fsynced and renamed over
+ * the target only when the whole run succeeded. Progress goes to stderr, on a terminal only.
  */
 import { availableParallelism } from 'node:os';
-import { closeSync, createReadStream, createWriteStream, fstatSync, fsyncSync, openSync, renameSync, rmSync } from 'node:fs';
-import { basename, dirname, join, resolve } from 'node:path';
+import { createReadStream, createWriteStream, fstatSync } from 'node:fs';
 import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
-import { FILE_MODE } from '../records/file-mode.js';
 import { info } from './messages.js';
-import { checkOutputPath } from './output-files.js';
+import { beginSafeWrite, checkOutputPath, writeFault, type SafeWrite } from '../io/safe-write.js';
 import { BatchSheet, RecordPieces } from '../records/batch-row.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
@@ -62,17 +60,9 @@ function write(stream: Writable, bytes: Uint8Array): Promise<void> {
 function finish(stream: Writable): Promise<void> {
   return new Promise<void>((ok, fail) => {
     stream.once('error', fail);
-    stream.end(() => ok());
+    // A write that failed after it was buffered (a full disk) surfaces here, not at write().
+    stream.end((err?: Error | null) => (err ? fail(err) : ok()));
   });
-}
-
-function fsyncFile(path: string): void {
-  const fd = openSync(path, 'r');
-  try {
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
-  }
 }
 
 export interface BatchCounts {
@@ -218,9 +208,9 @@ async function streamRows(input: AsyncIterable<string>, output: Writable, worker
 }
 
 export async function runBatch(inPath: string, opts: Record<string, unknown>): Promise<void> {
-  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, { option: 'out', extensions: [], protect: [inPath] }) : undefined;
+  const outRule = { option: 'out', inputs: [inPath] };
+  const outPath = opts.out !== undefined ? checkOutputPath(opts.out, outRule) : undefined;
   const showProgress = Boolean(process.stderr.isTTY);
-  const tempPath = outPath ? join(dirname(outPath), `.${basename(outPath)}.${process.pid}.tmp`) : undefined;
 
   const input = createReadStream(inPath, { highWaterMark: CHUNK_BYTES, encoding: 'utf8' });
   const inputFd = await new Promise<number>((ok, fail) => {
@@ -235,12 +225,17 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
 
   let output: Writable = process.stdout;
-  if (tempPath) {
-    const file = createWriteStream(tempPath, { mode: FILE_MODE, flags: 'wx', highWaterMark: CHUNK_BYTES });
-    await new Promise<void>((ok, fail) => {
-      file.once('open', () => ok());
-      file.once('error', (err) => fail(openProblem(String(opts.out), err, 'out')));
-    });
+  let safe: SafeWrite | undefined;
+  let outputFailure: Error | undefined;
+  if (outPath) {
+    try {
+      safe = beginSafeWrite(String(opts.out), outRule);
+    } catch (err) {
+      input.destroy();
+      throw err;
+    }
+    const file = createWriteStream('', { fd: safe.fd, autoClose: false, highWaterMark: CHUNK_BYTES });
+    file.on('error', (err) => (outputFailure = err));
     output = file;
   }
 
@@ -252,19 +247,19 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     if (!counts.header) {
       throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'empty', accepted: 'a CSV file with a header row and one row per visit (docs/batch.md)' });
     }
-    if (tempPath && outPath) {
+    if (safe) {
       await finish(output);
-      fsyncFile(tempPath);
-      renameSync(tempPath, outPath);
-      fsyncDirectory(dirname(outPath));
+      if (outputFailure) throw outputFailure;
+      safe.commit();
     }
   } catch (err) {
     input.destroy();
     // The reader of standard output went away (e.g. `| head`): stop quietly, as Unix tools do.
-    if (!tempPath && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
-    if (tempPath) {
+    if (!safe && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
+    if (safe) {
       output.destroy();
-      rmSync(tempPath, { force: true });
+      safe.abort();
+      if (err === outputFailure) throw writeFault(String(opts.out), err, safe.existed);
     }
     throw err;
   }
@@ -274,10 +269,3 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   }
 }
 
-function fsyncDirectory(path: string): void {
-  try {
-    fsyncFile(path);
-  } catch {
-    // Some file systems refuse fsync on a folder; the rename itself is atomic.
-  }
-}

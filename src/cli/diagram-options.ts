@@ -1,17 +1,17 @@
 /**
  * `assess --svg <file>` and `assess --sketch`: the estimated pressure–volume
- * diagram of the visit as an SVG file (written atomically) and as a compact
+ * diagram of the visit as an SVG file (written by io/safe-write.ts) and as a compact
  * text drawing. Loaded only when one of the two options is given.
  */
 import type { Assessment } from '../assessment/assess.js';
 import { InputError } from '../errors.js';
 import { renderPvDiagram, type ModelLoopOverlay } from '../render/pv-diagram.js';
 import { renderPvSketch } from '../render/terminal-plot.js';
-import { checkOutputPath, writeTextAtomically } from './output-files.js';
+import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 
 /** Check `--svg` before any prompting or computing. */
 export function checkSvgOption(raw: unknown, protect: readonly string[] = []): string {
-  return checkOutputPath(raw, { option: '--svg', extensions: ['.svg'], protect });
+  return checkOutputPath(raw, { option: '--svg', extensions: ['.svg'], inputs: protect });
 }
 
 /**
@@ -32,10 +32,10 @@ export function checkModelLoopOption(opts: Record<string, unknown>): void {
   }
 }
 
-export async function writeVisitSvg(a: Assessment, path: string, modelLoop?: ModelLoopOverlay): Promise<void> {
+export async function writeVisitSvg(a: Assessment, path: string, inputs: readonly string[] = [], modelLoop?: ModelLoopOverlay): Promise<void> {
   if (!a.mechanics) return;
   const svg = renderPvDiagram([{ label: 'This visit', loop: a.mechanics.loop }], { title: 'Estimated pressure–volume diagram', ...(modelLoop ? { modelLoop } : {}) });
-  await writeTextAtomically(path, svg + '\n', '--svg');
+  writeFileSafely(path, svg + '\n', { option: '--svg', inputs });
 }
 
 /** The text drawing after the report; with --json it goes to stderr so stdout stays one JSON object. */

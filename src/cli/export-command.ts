@@ -1,17 +1,16 @@
 /**
  * `elastimate export <files...> [--out file.csv] [--json]`: every visit of
  * every subject file as one tidy row (docs/csv-export.md). RFC 4180 CSV
- * (render/csv.ts); `--out` is written atomically (temporary file,
+ * (render/csv.ts); `--out` is written by io/safe-write.ts (temporary file,
  * fsync, rename) and readable by its owner only.
  */
-import { resolve } from 'node:path';
 import { assess } from '../assessment/assess.js';
 import { STANDING_CAVEATS } from '../assessment/caveats.js';
 import { METHODS_VERSION } from '../assessment/result.js';
-import { InputError, showValue } from '../errors.js';
-import { checkOutputPath } from './output-files.js';
+import { InputError } from '../errors.js';
+import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 import { visitInputs, visitsInOrder } from '../records/series.js';
-import { FILE_MODE, fileLibraries, readSubjectFile } from '../records/store.js';
+import { readSubjectFile } from '../records/store.js';
 import { csvCells, csvText, exportDictionary, exportErrorValues, exportValues, jsonRecord, type CellValue } from '../render/csv.js';
 import { stringifySafe } from '../render/json.js';
 import { toolVersion } from './package-info.js';
@@ -44,11 +43,8 @@ export function exportRows(paths: readonly string[]): { rows: CellValue[][]; fai
 }
 
 export async function runExport(paths: string[], opts: Record<string, unknown>): Promise<void> {
-  // --out must never replace one of the subject files being exported.
-  if (opts.out !== undefined) checkOutputPath(opts.out, { option: 'out', extensions: [] });
-  if (typeof opts.out === 'string' && paths.some((p) => resolve(p) === resolve(opts.out as string))) {
-    throw new InputError({ field: 'out', value: showValue(opts.out), reason: 'this is one of the subject files being exported and would be overwritten', accepted: 'a different file, e.g. cohort.csv' });
-  }
+  // --out must never replace one of the subject files being exported (nor follow a link, nor hit a special file).
+  if (opts.out !== undefined) checkOutputPath(opts.out, { option: 'out', inputs: paths });
   const columns = exportDictionary();
   const { rows, failed } = exportRows(paths);
   let text: string;
@@ -67,13 +63,7 @@ export async function runExport(paths: string[], opts: Record<string, unknown>):
   }
   if (failed > 0) warn(`${failed} visit(s) could not be computed; the reason is in the error column`);
   if (typeof opts.out === 'string') {
-    const { writeFileAtomic } = fileLibraries();
-    try {
-      await writeFileAtomic(opts.out, text, { mode: FILE_MODE, fsync: true });
-    } catch (err) {
-      const code = (err as NodeJS.ErrnoException).code ?? 'error';
-      throw new InputError({ field: 'out', value: JSON.stringify(opts.out), reason: `cannot be written (${code})`, accepted: 'a file path in an existing folder you can write to' });
-    }
+    writeFileSafely(opts.out, text, { option: 'out', inputs: paths });
     process.stderr.write(`elastimate: wrote ${rows.length} row(s) to ${opts.out}\n`);
   } else {
     process.stdout.write(text);

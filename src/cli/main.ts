@@ -4,7 +4,7 @@
  * command that needs them runs.
  */
 import { Command, CommanderError } from 'commander';
-import { InputError } from '../errors.js';
+import { EXIT_FILE_FAULT, FileFault, InputError, plainCause } from '../errors.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
@@ -12,6 +12,7 @@ import { registerScenarioCommand, registerSyntheticCommand } from './scenario-op
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
+export { EXIT_FILE_FAULT };
 
 /** Raised when the user leaves a prompt with Ctrl-C: the CLI exits quietly. */
 export class Cancelled extends Error {
@@ -123,8 +124,8 @@ export async function main(argv: string[]): Promise<number> {
   process.stdout.on('error', (err: NodeJS.ErrnoException) => {
     if (err.code === 'EPIPE') process.exit(0);
     // Any other write failure (a full disk, a closed file): one line, no stack trace.
-    process.stderr.write(`elastimate: cannot write the output (${err.code ?? err.message})\n`);
-    process.exit(1);
+    process.stderr.write(`elastimate: standard output: cannot be written: ${err.code ? `${plainCause(err.code)} (${err.code})` : err.message}\n`);
+    process.exit(EXIT_FILE_FAULT);
   });
   const program = buildProgram();
   trackInputFile(program);
@@ -145,6 +146,10 @@ export function reportError(err: unknown): number {
   if (err instanceof InputError) {
     process.stderr.write(`elastimate: ${err.message.split('\n').join('\nelastimate: ')}\n`);
     return EXIT_BAD_INPUT;
+  }
+  if (err instanceof FileFault) {
+    process.stderr.write(`elastimate: ${err.message}\n`);
+    return EXIT_FILE_FAULT;
   }
   if (err instanceof Cancelled || (err instanceof Error && err.name === 'ExitPromptError')) {
     process.stderr.write('\n');

@@ -3,13 +3,13 @@
  * the case-conference report of one visit in its series. The model is built
  * by a pure function (buildReportModel); this file only reads the subject
  * file, checks the paths, passes in the date and writes the files
- * atomically (the SVG pictures first, the page that links them last).
+ * through io/safe-write.ts (the SVG pictures first, the page that links them last).
  */
 import { basename, dirname, extname, join } from 'node:path';
 import type { SubjectFile } from '../records/subject-schema.js';
 import { InputError, showValue } from '../errors.js';
 import type { ReportModel, ReportVisit } from '../render/report-html.js';
-import { checkOutputPath, writeTextAtomically } from './output-files.js';
+import { checkOutputPath, writeFileSafely } from '../io/safe-write.js';
 import { toolVersion } from './package-info.js';
 
 export type ReportFormat = 'html' | 'md';
@@ -98,7 +98,8 @@ export async function runReport(subjectPath: string, opts: Record<string, unknow
   if (opts.out === undefined) {
     throw new InputError({ field: '--out', value: '', reason: 'required', accepted: format === 'md' ? 'a file path ending in .md, e.g. --out report.md' : 'a file path ending in .html, e.g. --out report.html' });
   }
-  const out = checkOutputPath(opts.out, { option: '--out', extensions: format === 'md' ? ['.md', '.markdown'] : ['.html', '.htm'], protect: [subjectPath] });
+  const inputs = [subjectPath];
+  const out = checkOutputPath(opts.out, { option: '--out', extensions: format === 'md' ? ['.md', '.markdown'] : ['.html', '.htm'], inputs });
   const parsed: { draws?: number; seed?: number } = {};
   if (opts.draws !== undefined || opts.seed !== undefined) {
     const { parseDraws, parseSeed } = await import('../assessment/uncertainty.js');
@@ -117,18 +118,19 @@ export async function runReport(subjectPath: string, opts: Record<string, unknow
 
   if (format === 'html') {
     const { renderReportHtml } = await import('../render/report-html.js');
-    await writeTextAtomically(out, renderReportHtml(model), '--out');
+    writeFileSafely(out, renderReportHtml(model), { option: '--out', inputs });
     process.stdout.write(`elastimate: report written to ${out}\n`);
     return;
   }
   const { renderReportMarkdown } = await import('../render/report-markdown.js');
   const base = basename(out, extname(out));
   const { markdown, files } = renderReportMarkdown(model, base);
+  // Every picture's path is checked before the first file is written.
+  for (const f of files) checkOutputPath(join(dirname(out), f.name), { option: '--out', extensions: ['.svg'], inputs });
   for (const f of files) {
     const path = join(dirname(out), f.name);
-    checkOutputPath(path, { option: '--out', extensions: ['.svg'], protect: [subjectPath] });
-    await writeTextAtomically(path, f.content, '--out');
+    writeFileSafely(path, f.content, { option: '--out', inputs });
   }
-  await writeTextAtomically(out, markdown, '--out');
+  writeFileSafely(out, markdown, { option: '--out', inputs });
   process.stdout.write(`elastimate: report written to ${out} with ${files.length} SVG files beside it\n`);
 }

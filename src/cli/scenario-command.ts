@@ -114,10 +114,10 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   const wantsIntervals = opts.intervals === true || opts.draws !== undefined || opts.seed !== undefined;
   const draws = opts.draws !== undefined ? drawsFromOption(opts.draws) : INTERVAL_DRAWS.default;
   const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
-  const files = opts.svg !== undefined || opts.report !== undefined ? await import('./output-files.js') : null;
+  const files = opts.svg !== undefined || opts.report !== undefined ? await import('../io/safe-write.js') : null;
   const protect = [inputFile, opts.subject].filter((p): p is string => typeof p === 'string');
-  const svgPath = files && opts.svg !== undefined ? files.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect }) : null;
-  const reportPath = files && opts.report !== undefined ? files.checkOutputPath(opts.report, { option: '--report', extensions: ['.html'], protect: svgPath ? [...protect, svgPath] : protect }) : null;
+  const svgPath = files && opts.svg !== undefined ? files.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], inputs: protect }) : null;
+  const reportPath = files && opts.report !== undefined ? files.checkOutputPath(opts.report, { option: '--report', extensions: ['.html'], inputs: svgPath ? [...protect, svgPath] : protect }) : null;
   const a = await visitAssessment(opts, inputFile);
   const result = runScenario(a, changes, shape);
   const loops = result.loops && result.fit.parameters && result.projected?.ees != null
@@ -129,7 +129,7 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
       }
     : null;
   const drawing = loops && (svgPath || reportPath || opts.sketch === true) ? await import('../render/model-loops.js') : null;
-  if (files && svgPath && drawing && loops) await files.writeTextAtomically(svgPath, drawing.renderModelLoopsSvg(loops), '--svg');
+  if (files && svgPath && drawing && loops) files.writeFileSafely(svgPath, drawing.renderModelLoopsSvg(loops), { option: '--svg', inputs: protect });
   let intervals: ScenarioIntervals | undefined;
   if (wantsIntervals && result.fitted && result.projected && !result.projectionReason) {
     const warm = baselineFitState(result.fitted);
@@ -143,7 +143,7 @@ export async function runScenarioCommand(opts: Record<string, unknown>, inputFil
   if (files && reportPath) {
     const { toolVersion } = await import('./package-info.js');
     const html = view.scenarioHtml(result, { ...(intervals ? { intervals } : {}), loopsSvg: drawing && loops ? drawing.renderModelLoopsSvg(loops) : null, generated: new Date().toISOString().slice(0, 10), toolVersion: toolVersion() });
-    await files.writeTextAtomically(reportPath, html, '--report');
+    files.writeFileSafely(reportPath, html, { option: '--report', inputs: protect });
   }
   if (opts.json === true) {
     const [{ stringifySafe }, { toolVersion }] = await Promise.all([import('../render/json.js'), import('./package-info.js')]);

@@ -63,8 +63,9 @@ export async function runSynthetic(opts: Record<string, unknown>): Promise<void>
   if (near === undefined && opts.visit !== undefined) throw new InputError({ field: '--visit', value: showValue(opts.visit), reason: 'needs --near with a subject file', accepted: 'a visit number or date of the subject file given with --near' });
   const seed = opts.seed !== undefined ? seedFromOption(opts.seed) : 1;
   const shapes = shapesOf(opts.shape);
-  const diagrams = opts.svg !== undefined ? await import('./output-files.js') : null;
-  const svgPath = diagrams ? diagrams.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], protect: [] }) : null;
+  const diagrams = opts.svg !== undefined ? await import('../io/safe-write.js') : null;
+  const inputs = typeof opts.near === 'string' ? [opts.near] : [];
+  const svgPath = diagrams ? diagrams.checkOutputPath(opts.svg, { option: '--svg', extensions: ['.svg'], inputs }) : null;
   const requests: SyntheticRequest[] = [];
   for (let c = 0, left = n; left > 0; c++, left -= SYNTHETIC_CHUNK) requests.push({ seed, chunk: c, count: Math.min(SYNTHETIC_CHUNK, left), shapes, ...(near ? { near } : {}) });
   const { splitOverThreads } = await import('./threads.js');
@@ -72,7 +73,7 @@ export async function runSynthetic(opts: Record<string, unknown>): Promise<void>
   const summary = cohortSummary(rows, n, seed, shapes);
   if (near) summary.near = { target: near, windows: NEAR_WINDOWS, drawn: n };
   const view = await import('../render/synthetic.js');
-  if (diagrams && svgPath) await diagrams.writeTextAtomically(svgPath, view.blandAltmanSvg(rows, summary), '--svg');
+  if (diagrams && svgPath) diagrams.writeFileSafely(svgPath, view.blandAltmanSvg(rows, summary), { option: '--svg', inputs });
   if (opts.json === true) {
     const [{ stringifySafe }, { toolVersion }] = await Promise.all([import('../render/json.js'), import('./package-info.js')]);
     process.stdout.write(stringifySafe(view.syntheticJson(rows, summary, toolVersion())) + '\n');

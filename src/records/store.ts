@@ -4,47 +4,56 @@
  * - Reading never writes: a file that does not parse, fails the schema or was
  *   written by a newer version is refused with an InputError naming the file
  *   and the problem, and its bytes stay exactly as they were.
- * - Every change runs under a lock (proper-lockfile: a `<file>.lock` folder
- *   whose age is refreshed while held; a lock left by a killed process counts
- *   as stale after `staleMs`, 5 s by default, and is then taken over), re-reads
- *   the file inside the lock, and writes atomically (write-file-atomic: a
- *   temporary file in the same folder, fsync, rename), then fsyncs the folder.
- *   A kill at any instant leaves the old file or the new one, never a mix.
+ * - Every change runs under a lock (proper-lockfile: a `<file>.lock` folder,
+ *   owner-only, whose age is refreshed while held; a lock left by a killed
+ *   process counts as stale after `staleMs`, 5 s by default, and is then taken
+ *   over; a wait of more than a second is said on stderr), re-reads the file
+ *   inside the lock, and writes it through io/safe-write.ts (temporary file in
+ *   the same folder, fsync, rename, folder fsync). A kill at any instant
+ *   leaves the old file or the new one, never a mix.
+ * - A subject file that is a symbolic link or a special file is refused (exit
+ *   2), and so is one without write permission for its owner (mode 0444: a
+ *   FileFault, exit 3), checked from the mode itself, since root ignores it.
  * - New files are created with mode 0600 (owner only); an existing file keeps
  *   its mode. Backups (before an edit or removal, and before a migration) are
- *   0600 copies of the exact old bytes named `<file>.<stamp>[.<tag>].bak`.
+ *   0600 copies of the exact old bytes named `<file>.<stamp>[.<tag>].bak`,
+ *   complete and flushed before the subject file is replaced, and removed
+ *   again when the change then fails.
  *
  * Nothing here reads the clock on its own: the caller passes `now`.
  */
-import { closeSync, fsyncSync, openSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import * as fs from 'node:fs';
+import { accessSync, constants as fsConstants, lstatSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { basename, dirname, resolve } from 'node:path';
-import { InputError, showValue, type InputProblem } from '../errors.js';
+import { FileFault, InputError, plainCause, showValue, type InputProblem } from '../errors.js';
+import { fileKind, writeFileSafely, writeNewFileSafely } from '../io/safe-write.js';
 import { stringifySafe } from '../render/json.js';
 import { SUBJECT_VERSIONS, migrateDocument, type Migration, type SchemaVersions } from './migrations.js';
 import { SUBJECT_FORMAT, SubjectFileSchema, type SubjectFile } from './subject-schema.js';
 
 /**
- * proper-lockfile and write-file-atomic, loaded on first write. Through
- * createRequire, not import(): both are CommonJS that read `__filename`,
- * which a single-file ES module bundle does not provide, so they are left
- * out of the bundle and resolved from node_modules at run time.
+ * proper-lockfile, loaded on first write. Through createRequire, not
+ * import(): it is CommonJS reading `__filename`, which a single-file ES
+ * module bundle does not provide, so it is left out of the bundle and
+ * resolved from node_modules at run time.
  */
-interface FileLibraries {
-  lockfile: typeof import('proper-lockfile');
-  writeFileAtomic: typeof import('write-file-atomic');
+type Lockfile = typeof import('proper-lockfile');
+let lockfileLibrary: Lockfile | undefined;
+function lockfileLib(): Lockfile {
+  lockfileLibrary ??= createRequire(import.meta.url)('proper-lockfile') as Lockfile;
+  return lockfileLibrary;
 }
-let libraries: FileLibraries | undefined;
-export function fileLibraries(): FileLibraries {
-  if (!libraries) {
-    const nodeRequire = createRequire(import.meta.url);
-    libraries = {
-      lockfile: nodeRequire('proper-lockfile') as FileLibraries['lockfile'],
-      writeFileAtomic: nodeRequire('write-file-atomic') as FileLibraries['writeFileAtomic'],
-    };
-  }
-  return libraries;
-}
+
+/** Folders this tool creates are its owner's alone (0700), whatever the umask: the lock folder is made through this. */
+export const FOLDER_MODE = 0o700;
+const lockFs = {
+  ...fs,
+  mkdir: (path: fs.PathLike, callback: (err: NodeJS.ErrnoException | null) => void) => fs.mkdir(path, { mode: FOLDER_MODE }, (err) => callback(err)),
+};
+
+/** Said on stderr once a writer has waited this long for another's lock. */
+export const LOCK_WAIT_NOTICE_MS = 1000;
 
 import { FILE_MODE } from './file-mode.js';
 
@@ -64,6 +73,8 @@ export interface UpdateOptions extends ReadOptions {
   backup?: boolean;
   /** Age in ms after which another process's lock counts as stale (min 2000). */
   staleMs?: number;
+  /** Told once the lock has been waited for LOCK_WAIT_NOTICE_MS; by default a line on stderr. */
+  onLockWait?: (path: string) => void;
 }
 
 export interface UpdateResult {
@@ -95,8 +106,12 @@ function fileProblem(path: string, reason: string, accepted = `a subject file ($
 
 function readBytes(path: string): Buffer | null {
   try {
+    // A FIFO or a device would block or never end: only a regular file (reached through a link or not) is read.
+    const kind = fileKind(statSync(path));
+    if (kind) throw fileProblem(path, `is ${kind}`);
     return readFileSync(path);
   } catch (err) {
+    if (err instanceof InputError) throw err;
     const code = (err as NodeJS.ErrnoException).code;
     if (code === 'ENOENT') return null;
     const reason = code === 'EISDIR' ? 'is a folder' : code === 'EACCES' ? 'permission denied' : `cannot be read (${code ?? 'error'})`;
@@ -188,42 +203,58 @@ export function backupStamp(now: Date): string {
   return now.toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
 }
 
-/** Write the exact old bytes to a new 0600 backup file beside the original; never overwrites. */
+/** Write the exact old bytes to a new 0600 backup file beside the original, complete and flushed; never overwrites. */
 function writeBackup(path: string, bytes: Buffer, now: Date, tag: string): string {
   const base = `${path}.${backupStamp(now)}${tag ? '.' + tag : ''}`;
-  for (let n = 1; n < 1000; n++) {
-    const candidate = n === 1 ? `${base}.bak` : `${base}-${n}.bak`;
-    try {
-      writeFileSync(candidate, bytes, { mode: FILE_MODE, flag: 'wx' });
-      fsyncPath(candidate);
-      return candidate;
-    } catch (err) {
-      if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
-    }
+  function* names(): Generator<string> {
+    for (let n = 1; n < 1000; n++) yield n === 1 ? `${base}.bak` : `${base}-${n}.bak`;
   }
-  throw new Error(`could not find a free backup name for ${path}`);
-}
-
-function fsyncPath(path: string): void {
-  let fd: number | undefined;
   try {
-    fd = openSync(path, 'r');
-    fsyncSync(fd);
-  } catch {
-    // Some file systems refuse fsync on a folder; the rename itself is still atomic.
-  } finally {
-    if (fd !== undefined) closeSync(fd);
+    return writeNewFileSafely(names(), bytes, { option: 'backup', mode: FILE_MODE });
+  } catch (err) {
+    if (!(err instanceof FileFault)) throw err;
+    throw new FileFault(path, 'cannot be changed', `its backup ${basename(err.path)} cannot be written: ${plainCause(err.code)}`, err.code);
   }
 }
 
-function lockProblem(path: string, err: unknown): InputError {
+/**
+ * Refuse to change a subject file that is a link or a special file (InputError)
+ * or that its owner may not write (FileFault): from the mode bits, since root
+ * would write a 0444 file regardless.
+ */
+function checkChangeable(path: string, target: string): void {
+  let stat: fs.Stats;
+  try {
+    stat = lstatSync(target);
+  } catch {
+    return; // not there yet: it will be created
+  }
+  const kind = fileKind(stat);
+  if (kind) throw fileProblem(path, `is ${kind}; a subject file is changed only in place, never through a link`, 'a regular subject file (docs/subject-file.md)');
+  if ((stat.mode & 0o200) === 0) {
+    throw new FileFault(path, 'cannot be changed', `the file is read-only (mode ${(stat.mode & 0o777).toString(8).padStart(4, '0')}); make it writable (chmod u+w) to change it`);
+  }
+  // Replacing by rename needs only the folder's permission: the file's own is asked for here.
+  try {
+    accessSync(target, fsConstants.W_OK);
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code ?? '';
+    throw new FileFault(path, 'cannot be changed', plainCause(code), code);
+  }
+}
+
+function lockProblem(path: string, err: unknown): InputError | FileFault {
   const code = (err as NodeJS.ErrnoException).code;
   if (code === 'ELOCKED') {
     return fileProblem(path, `locked by another elastimate process (lock folder ${basename(path)}.lock)`, 'try again in a moment; a lock left by a stopped process expires by itself after a few seconds');
   }
   if (code === 'ENOENT') return fileProblem(path, `the folder ${dirname(path)} does not exist`, 'a subject file in an existing folder');
-  if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') return fileProblem(path, `cannot create a lock in ${dirname(path)} (${code})`, 'a subject file in a folder you can write to');
+  if (code) return new FileFault(path, `cannot be locked (the lock is a folder ${basename(path)}.lock beside it)`, plainCause(code), code);
   return fileProblem(path, `cannot be locked (${(err as Error).message})`, 'a subject file in a folder you can write to');
+}
+
+function sayLockWait(path: string): void {
+  process.stderr.write(`elastimate: waiting for another elastimate process to finish changing ${path}…\n`);
 }
 
 /**
@@ -236,7 +267,7 @@ function lockProblem(path: string, err: unknown): InputError {
 export async function updateSubjectFile(path: string, update: SubjectUpdate, options: UpdateOptions): Promise<UpdateResult> {
   const target = resolve(path);
   const versions = options.versions ?? SUBJECT_VERSIONS;
-  const { lockfile, writeFileAtomic } = fileLibraries();
+  const lockfile = lockfileLib();
   const staleMs = Math.max(options.staleMs ?? DEFAULT_STALE_MS, 2000);
 
   // Without its folder the lock would be retried in vain until the retries run out.
@@ -247,11 +278,20 @@ export async function updateSubjectFile(path: string, update: SubjectUpdate, opt
     folderOk = false;
   }
   if (!folderOk) throw lockProblem(path, Object.assign(new Error('no folder'), { code: 'ENOENT' }));
+  checkChangeable(path, target);
+  // proper-lockfile retries every failure until its retries run out: a folder that cannot be written is said at once.
+  try {
+    accessSync(dirname(target), fsConstants.W_OK);
+  } catch (err) {
+    throw lockProblem(path, err);
+  }
 
   let compromised: Error | undefined;
   let release: () => Promise<void>;
+  const waitNotice = setTimeout(() => (options.onLockWait ?? sayLockWait)(path), LOCK_WAIT_NOTICE_MS);
   try {
     release = await lockfile.lock(target, {
+      fs: lockFs,
       realpath: false,
       lockfilePath: `${target}.lock`,
       stale: staleMs,
@@ -263,9 +303,13 @@ export async function updateSubjectFile(path: string, update: SubjectUpdate, opt
     });
   } catch (err) {
     throw lockProblem(path, err);
+  } finally {
+    clearTimeout(waitNotice);
   }
 
+  const backups: string[] = [];
   try {
+    checkChangeable(path, target);
     const bytes = readBytes(target);
     const loaded = bytes === null ? null : parseSubjectBytes(path, bytes, versions);
     const next = await update(loaded ? loaded.file : null);
@@ -273,15 +317,17 @@ export async function updateSubjectFile(path: string, update: SubjectUpdate, opt
     if (!checked.success) throw new Error(`refusing to write an invalid subject file: ${checked.error.message}`);
     if (compromised) throw fileProblem(path, `lost its lock while changing (${compromised.message}); nothing was written`, 'try again');
 
-    const backups: string[] = [];
     if (bytes !== null && loaded !== null) {
       if (loaded.applied.length > 0) backups.push(writeBackup(target, bytes, options.now, `v${loaded.diskVersion}`));
       else if (options.backup) backups.push(writeBackup(target, bytes, options.now, ''));
     }
     const mode = bytes === null ? FILE_MODE : statSync(target).mode & 0o777;
-    await writeFileAtomic(target, stringifySafe(checked.data) + '\n', { mode, fsync: true });
-    fsyncPath(dirname(target));
+    writeFileSafely(path, stringifySafe(checked.data) + '\n', { option: 'subject file', mode });
     return { file: checked.data, created: bytes === null, backups, migrated: loaded?.applied ?? [] };
+  } catch (err) {
+    // The subject file is as it was: a backup of it made for this change would only mislead.
+    for (const b of backups) rmSync(b, { force: true });
+    throw err;
   } finally {
     await release().catch(() => undefined);
   }

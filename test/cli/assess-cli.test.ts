@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { NUMERIC_FIELDS } from '../../src/assessment/fields.js';
 import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, plainEnv, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { AS_NOBODY, requireMeans } from '../hostile/fixtures/system-means.js';
 
 // The hand-worked single-beat example of ../shared/method-notes.md §4 (computed there, not published):
 // SBP 120, DBP 80, EF 0.60, SV 70 mL, PEP 90 ms, ET 290 ms → Pes 108, tNd 0.23684, ENd(avg) 0.33614,
@@ -265,11 +266,15 @@ describe('bad values: exit 2, one message naming field, value and what is accept
     const locked = join(scratch, 'locked.visit.json');
     writeFileSync(locked, '{}');
     chmodSync(locked, 0o000);
-    // Root reads anything: then the file is read and the (empty) visit misses inputs instead.
-    const run = await runCli(['assess', '--input', locked]);
+    // Root reads anything, so as root (CI) the CLI runs as `nobody` (setpriv); the folder is open to all (0755),
+    // so only the file's own mode stops it. Without the means the test fails; it is never skipped.
+    chmodSync(scratch, 0o755);
+    const asRoot = process.getuid?.() === 0;
+    if (asRoot) requireMeans('setpriv');
+    const run = await runCli(['assess', '--input', locked], asRoot ? { wrap: AS_NOBODY } : {});
     expect(run.code).toBe(2);
     expect(run.stderr).not.toMatch(STACK_FRAME);
-    if (process.getuid?.() !== 0) expect(run.stderr).toMatch(/^elastimate: input: .*cannot be read/m);
+    expect(run.stderr).toMatch(/^elastimate: input: .*cannot be read/m);
   });
 
   it('a malformed JSON visit file', async () => {
@@ -330,12 +335,12 @@ describe('version, help, unknown options', () => {
   });
 
   // Regression: a failing standard output (here a full device) used to end in an uncaught exception and a stack dump.
-  it.runIf(existsSync('/dev/full'))('an output that cannot be written (stdout on /dev/full): one line, exit 1, no stack trace', () => {
+  it.runIf(existsSync('/dev/full'))('an output that cannot be written (stdout on /dev/full): one line in plain words, exit 3 (docs/files.md), no stack trace', () => {
     const full = openSync('/dev/full', 'w');
     try {
       const run = spawnSync(process.execPath, [join(ROOT, 'bin', 'elastimate.js'), 'assess', '--no-input', ...WORKED], { cwd: ROOT, env: plainEnv(), stdio: ['ignore', full, 'pipe'], encoding: 'utf8', timeout: 15_000 });
-      expect(run.status).toBe(1);
-      expect(run.stderr).toBe('elastimate: cannot write the output (ENOSPC)\n');
+      expect(run.status).toBe(3);
+      expect(run.stderr).toBe('elastimate: standard output: cannot be written: the disk is full (ENOSPC)\n');
     } finally {
       closeSync(full);
     }

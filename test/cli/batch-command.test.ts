@@ -104,7 +104,7 @@ describe('batch', () => {
   it('refuses, with exit 2, a missing file, an empty one, a header without measurement columns, and the input as output', async () => {
     const refusals: [string[], RegExp][] = [
       [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file or folder not found/],
-      [['batch', input, '--out', input], /out: got .*; this is an input file and would be overwritten/],
+      [['batch', input, '--out', input], /out: got .*; this is a file the command reads and would be overwritten/],
     ];
     const empty = join(dir, 'empty.csv');
     writeFileSync(empty, '');
@@ -144,7 +144,7 @@ describe('batch: folders and empty paths are input errors, not crashes', () => {
     expect(asInput.stderr).toMatch(/batch file: got ".*"; is a folder; accepted: a readable CSV file/);
     const asOut = run('cases/hypertension-cohort.csv', '--out', folder);
     expect(asOut.status).toBe(2);
-    expect(asOut.stderr).toMatch(/out: got ".*"; exists and is not a regular file/);
+    expect(asOut.stderr).toMatch(/out: got ".*"; is a folder; it is never written through or replaced/);
     const empty = run('cases/hypertension-cohort.csv', '--out', '');
     expect(empty.status).toBe(2);
     expect(empty.stderr).toMatch(/out: got ""; accepted: a file path in an existing folder/);
