@@ -48,6 +48,11 @@ import type { WindkesselParameters } from './windkessel.js';
  */
 export const ELECTROMECHANICAL_DELAY_MS = 20;
 
+/** Time to peak elastance from the onset of contraction: peak at aortic valve closure, Tpeak = PEP + ET − EMD (docs/model.md). */
+export function timeToPeakElastance(pep: number, et: number, electromechanicalDelay = ELECTROMECHANICAL_DELAY_MS): number {
+  return pep + et - electromechanicalDelay;
+}
+
 export interface HeartModel {
   ventricle: VentricleProperties;
   /** bpm */

@@ -15,7 +15,7 @@
  */
 import { couplingRatio } from '../physiology/coupling.js';
 import { potentialEnergy, pressureVolumeArea, strokeWork, mechanicalEfficiency } from '../physiology/energetics.js';
-import { simulateToSteadyState, type HeartModel, type ModelState, type SimulatedBeat } from './beat.js';
+import { simulateToSteadyState, timeToPeakElastance, type HeartModel, type ModelState, type SimulatedBeat } from './beat.js';
 import { systolicIntervalsAtHeartRate } from './systolic-intervals.js';
 
 export interface ScenarioChanges {
@@ -73,7 +73,7 @@ export function changedModel(fitted: HeartModel, timing: MeasuredTiming, c: Scen
   let m: HeartModel = fitted;
   if (c.toHr !== undefined) {
     const iv = systolicIntervalsAtHeartRate({ pep: timing.pep, et: timing.et }, timing.hr, c.toHr, timing.sex);
-    m = { ...m, heartRate: c.toHr, timeToPeak: iv.pep + iv.et - m.electromechanicalDelay };
+    m = { ...m, heartRate: c.toHr, timeToPeak: timeToPeakElastance(iv.pep, iv.et, m.electromechanicalDelay) };
   }
   if (c.resistance !== undefined || c.compliance !== undefined) {
     m = {

@@ -29,12 +29,12 @@ import { volumeIntercept } from '../physiology/volume-intercept.js';
 import type { Assessment } from '../assessment/assess.js';
 import type { GraphInputKey } from '../assessment/graph/inputs.js';
 import type { ResultKey } from '../assessment/graph/registry.js';
-import { ELECTROMECHANICAL_DELAY_MS, type HeartModel } from './beat.js';
+import { ELECTROMECHANICAL_DELAY_MS, timeToPeakElastance, type HeartModel } from './beat.js';
 import { DEFAULT_ELASTANCE_SHAPE, type ElastanceShape } from './double-hill.js';
 import type { FitTargets } from './fit.js';
 import { INFLOW_RESISTANCE } from './valves.js';
 import type { PassiveCurve } from './ventricle.js';
-import { windkesselStart } from './windkessel.js';
+import { windkesselStart, type WindkesselParameters } from './windkessel.js';
 
 /** EDP assumed when none is entered or estimated (a typical normal value; common practice). */
 export const ASSUMED_EDP_MMHG = 10;
@@ -169,6 +169,33 @@ export function numbersFromAssessment(a: Assessment): SubjectNumbers {
   return subjectNumbers(graphReaderOf(a), visitExtras(a), a.results.ees.reason);
 }
 
+/**
+ * A heart model from its parts: the one place the fixed choices are applied
+ * (the electromechanical delay, peak elastance at aortic valve closure, the
+ * inflow valve's resistance, the Klotz passive curve through (EDV, EDP)). Used
+ * for a visit's model and for every virtual heart of `synthetic`.
+ */
+export function heartModelFrom(p: {
+  ees: number; v0: number; edv: number; edp: number; hr: number; pep: number; et: number;
+  shape: ElastanceShape; arteries: WindkesselParameters; sourcePressure: number;
+}): { ok: true; model: HeartModel } | { ok: false; reason: string } {
+  const curve = endDiastolicCurveFromOnePoint(p.edv, p.edp);
+  if (curve.curve === null) return { ok: false, reason: `no diastolic filling curve: ${curve.reason}` };
+  return {
+    ok: true,
+    model: {
+      ventricle: { ees: p.ees, v0: p.v0, passive: { alpha: curve.curve.alpha, beta: curve.curve.beta } },
+      heartRate: p.hr,
+      timeToPeak: timeToPeakElastance(p.pep, p.et),
+      electromechanicalDelay: ELECTROMECHANICAL_DELAY_MS,
+      shape: p.shape,
+      arteries: p.arteries,
+      sourcePressure: p.sourcePressure,
+      inflowResistance: INFLOW_RESISTANCE,
+    },
+  };
+}
+
 /** The model's fixed parts and first guess, or why no model can be built. */
 export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_ELASTANCE_SHAPE): SubjectSetupOutcome {
   if (n.ees === null || n.v0 === null) return { ok: false, reason: `Ees is not computable for this visit (${n.eesReason ?? 'no single-beat Ees'}), so the ventricle has no end-systolic line` };
@@ -181,8 +208,7 @@ export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_
   if (!(n.edv - n.sv > n.v0)) {
     return { ok: false, reason: `V0 ${n.v0.toFixed(0)} mL lies above the end-systolic volume the fit needs (EDV − SV = ${(n.edv - n.sv).toFixed(0)} mL): no positive end-systolic pressure` };
   }
-  const timeToPeak = n.pep + n.et - ELECTROMECHANICAL_DELAY_MS;
-  if (!(timeToPeak > 50)) return { ok: false, reason: 'PEP + ET is too short for a contraction' };
+  if (!(timeToPeakElastance(n.pep, n.et) > 50)) return { ok: false, reason: 'PEP + ET is too short for a contraction' };
   if (!(n.pep + n.et < 60_000 / n.hr)) return { ok: false, reason: 'PEP + ET is longer than the heart period' };
   const notes: string[] = [];
   if (n.assessedV0 !== undefined && n.assessedV0 !== null && Math.abs(n.assessedV0 - n.v0) >= 1) {
@@ -197,18 +223,9 @@ export function subjectSetup(n: SubjectNumbers, shape: ElastanceShape = DEFAULT_
   } else {
     edpSource = n.edpSource === 'entered' ? 'entered' : 'estimated';
   }
-  const curve = endDiastolicCurveFromOnePoint(n.edv, edp);
-  if (curve.curve === null) return { ok: false, reason: `no diastolic filling curve: ${curve.reason}` };
-  const passive = { alpha: curve.curve.alpha, beta: curve.curve.beta };
-  const model: HeartModel = {
-    ventricle: { ees: n.ees, v0: n.v0, passive },
-    heartRate: n.hr,
-    timeToPeak,
-    electromechanicalDelay: ELECTROMECHANICAL_DELAY_MS,
-    shape,
-    arteries: windkesselStart(n.tpr, n.compliance),
-    sourcePressure: edp,
-    inflowResistance: INFLOW_RESISTANCE,
-  };
+  const built = heartModelFrom({ ees: n.ees, v0: n.v0, edv: n.edv, edp, hr: n.hr, pep: n.pep, et: n.et, shape, arteries: windkesselStart(n.tpr, n.compliance), sourcePressure: edp });
+  if (!built.ok) return built;
+  const { model } = built;
+  const passive = model.ventricle.passive;
   return { ok: true, model, targets: { edv: n.edv, sv: n.sv, sbp: n.sbp, dbp: n.dbp }, passive, edp, edpSource, notes };
 }

@@ -30,10 +30,10 @@ import { computeResults } from '../assessment/graph/index.js';
 import { parseInputs } from '../assessment/inputs.js';
 import { randomStreams } from '../assessment/monte-carlo.js';
 import { InputError } from '../errors.js';
-import { endDiastolicCurveFromOnePoint } from '../physiology/end-diastolic-pressure-volume.js';
-import { ELECTROMECHANICAL_DELAY_MS, simulateToSteadyState, type HeartModel } from './beat.js';
+import { simulateToSteadyState, type HeartModel } from './beat.js';
 import type { ElastanceShape } from './double-hill.js';
-import { INFLOW_RESISTANCE } from './valves.js';
+import { heartModelFrom } from './subject-model.js';
+import { normalSystolicIntervals } from './systolic-intervals.js';
 import { centredMoments, virtualOcclusion } from './virtual-occlusion.js';
 
 export const VIRTUAL_RANGES = {
@@ -109,6 +109,7 @@ export function drawHeart(rng: RandomGenerator, near?: NearTarget): VirtualHeart
   const r = VIRTUAL_RANGES;
   const hr = near ? uniform(rng, [near.hr - NEAR_WINDOWS.hr, near.hr + NEAR_WINDOWS.hr]) : uniform(rng, r.hr);
   const resistance = uniform(rng, r.resistance);
+  const normal = normalSystolicIntervals(hr, 'male');
   const heart = {
     emax: uniform(rng, r.emax),
     v0: uniform(rng, r.v0),
@@ -119,25 +120,18 @@ export function drawHeart(rng: RandomGenerator, near?: NearTarget): VirtualHeart
     edv: near ? uniform(rng, [near.edv * (1 - NEAR_WINDOWS.edvFraction), near.edv * (1 + NEAR_WINDOWS.edvFraction)]) : uniform(rng, r.edv),
     edp: uniform(rng, r.edp),
     // Weissler 1968, men (systolic-intervals.ts), scaled per heart.
-    pep: (131 - 0.4 * hr) * uniform(rng, r.timingFactor),
-    et: (413 - 1.7 * hr) * uniform(rng, r.timingFactor),
+    pep: normal.pep * uniform(rng, r.timingFactor),
+    et: normal.et * uniform(rng, r.timingFactor),
   };
   return heart;
 }
 
 export function heartModelOf(h: VirtualHeart, shape: ElastanceShape): HeartModel | null {
-  const curve = endDiastolicCurveFromOnePoint(h.edv, h.edp).curve;
-  if (curve === null) return null;
-  return {
-    ventricle: { ees: h.emax, v0: h.v0, passive: { alpha: curve.alpha, beta: curve.beta } },
-    heartRate: h.hr,
-    timeToPeak: h.pep + h.et - ELECTROMECHANICAL_DELAY_MS,
-    electromechanicalDelay: ELECTROMECHANICAL_DELAY_MS,
-    shape,
-    arteries: { resistance: h.resistance, compliance: h.compliance, characteristicImpedance: h.zc },
-    sourcePressure: h.edp,
-    inflowResistance: INFLOW_RESISTANCE,
-  };
+  const built = heartModelFrom({
+    ees: h.emax, v0: h.v0, edv: h.edv, edp: h.edp, hr: h.hr, pep: h.pep, et: h.et, shape,
+    arteries: { resistance: h.resistance, compliance: h.compliance, characteristicImpedance: h.zc }, sourcePressure: h.edp,
+  });
+  return built.ok ? built.model : null;
 }
 
 /** Simulate, observe, estimate and occlude one virtual heart. */

@@ -37,6 +37,20 @@ export const WEISSLER_SLOPES: Readonly<Record<'male' | 'female', SystolicInterva
   female: { ejectionTime: -1.6, preEjectionPeriod: -0.4 },
 };
 
+/** The regressions' intercepts, ms (from memory, as above). */
+export const WEISSLER_INTERCEPTS: Readonly<Record<'male' | 'female', SystolicIntervals>> = {
+  male: { pep: 131, et: 413 },
+  female: { pep: 133, et: 418 },
+};
+
+/** The normal PEP and ET at a heart rate by the Weissler regressions (men's unless female). */
+export function normalSystolicIntervals(hr: number, sex: 'male' | 'female' | null): SystolicIntervals {
+  const key = sex === 'female' ? 'female' : 'male';
+  const a = WEISSLER_INTERCEPTS[key];
+  const s = WEISSLER_SLOPES[key];
+  return { pep: a.pep + s.preEjectionPeriod * hr, et: a.et + s.ejectionTime * hr };
+}
+
 export interface SystolicIntervals {
   /** ms */
   pep: number;
