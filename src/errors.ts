@@ -3,6 +3,8 @@
  * as given and what is accepted; the CLI prints it without a stack trace and
  * exits with code 2.
  */
+import { sanitizeText } from './text/sanitize.js';
+
 export class InputError extends Error {
   readonly field: string;
   readonly value: string;
@@ -33,23 +35,52 @@ export interface InputProblem {
 }
 
 export function describeProblem(p: InputProblem): string {
-  const shown = p.value === '' ? 'missing' : `got ${p.value}`;
+  const value = p.value.length > MAX_VALUE_TEXT ? clipText(p.value) : p.value;
+  const shown = value === '' ? 'missing' : `got ${value}`;
   const why = p.reason ? `${p.reason}; ` : '';
-  return `${p.field}: ${shown}; ${why}accepted: ${p.accepted}`;
+  // One line on a screen or in an error cell: user text in it (a key, a file name) is clipped and
+  // its control characters made visible (the one sanitiser, src/text/sanitize.ts).
+  return sanitizeText(`${clipText(p.field)}: ${shown}; ${why}accepted: ${p.accepted}`);
 }
 
-/** Render any value for an error message without ever printing "undefined". */
+/** At most this many characters of a value are echoed in a message; the rest is counted. */
+export const SHOWN_CHARACTERS = 80;
+/** A value already quoted by showValue is at most this long (80 characters, each escaped as \uXXXX, and the count). */
+const MAX_VALUE_TEXT = SHOWN_CHARACTERS * 6 + 40;
+
+/** The first SHOWN_CHARACTERS characters (never half a surrogate pair); the whole text when shorter. */
+function head(text: string): string {
+  let end = SHOWN_CHARACTERS;
+  const last = text.charCodeAt(end - 1);
+  if (last >= 0xd800 && last <= 0xdbff) end -= 1;
+  return text.slice(0, end);
+}
+
+/** Text for a message: whole when short, else its head, an ellipsis and how long it was. */
+export function clipText(text: string, quote: (t: string) => string = (t) => t): string {
+  if (text.length <= SHOWN_CHARACTERS) return quote(text);
+  return `${quote(head(text))}… (${text.length.toLocaleString('en-US')} characters)`;
+}
+
+/**
+ * Render any value for an error message without ever printing "undefined":
+ * strings quoted, at most SHOWN_CHARACTERS characters of a long value with its
+ * length (a 1 MB value never becomes a 1 MB message), control characters
+ * escaped or made visible.
+ */
 export function showValue(v: unknown): string {
   if (v === undefined || v === null) return '';
-  if (typeof v === 'string') return JSON.stringify(v);
+  if (typeof v === 'string') return sanitizeText(clipText(v, (t) => JSON.stringify(t)));
   // A non-finite number never reaches the user as NaN or Infinity, not even in an error message
   // (a JSON file may hold 1e400, which parses as Infinity): it is described in words.
   if (typeof v === 'number') return Number.isFinite(v) ? String(v) : Number.isNaN(v) ? 'not a number' : 'a number too large to represent';
+  let text: string;
   try {
-    return JSON.stringify(v) ?? String(v);
+    text = JSON.stringify(v) ?? String(v);
   } catch {
-    return String(v);
+    text = String(v);
   }
+  return sanitizeText(clipText(text));
 }
 
 /**

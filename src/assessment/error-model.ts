@@ -13,7 +13,7 @@
  * An override sets the SD of the value as used, i.e. of the mean when several
  * cuff readings were given.
  */
-import { InputError, showValue } from '../errors.js';
+import { InputError, showValue, type InputProblem } from '../errors.js';
 import { toInternalUnit } from '../units/quantity.js';
 import { fieldByKey } from './fields.js';
 import { visitPlan } from './graph/index.js';
@@ -145,17 +145,20 @@ function acceptedFor(key: ErrorInputKey): string {
   return `a standard deviation ≥ 0: a number in ${unit} (up to ${f.max}${f.unit === '%' ? '' : ' ' + f.unit}), a value with a unit, or a percentage of the value from 0 % to 100 %`;
 }
 
+/** The problem of an error-model entry that names no input whose error reaches a result. */
+export function unknownErrorInput(rawKey: string): InputProblem {
+  return {
+    field: 'error',
+    value: showValue(rawKey),
+    reason: 'not an input whose error reaches a result',
+    accepted: `one of ${ERROR_INPUT_KEYS.map((k) => fieldByKey(k).flag).join(', ')}`,
+  };
+}
+
 /** Interpret one override; throws InputError naming `error.<flag>`. */
 export function parseErrorOverride(rawKey: string, raw: unknown): { input: ErrorInputKey; kind: 'absolute' | 'relative'; value: number; text: string } {
   const key = keyOf(rawKey);
-  if (!isErrorKey(key)) {
-    throw new InputError({
-      field: 'error',
-      value: showValue(rawKey),
-      reason: 'not an input whose error reaches a result',
-      accepted: `one of ${ERROR_INPUT_KEYS.map((k) => fieldByKey(k).flag).join(', ')}`,
-    });
-  }
+  if (!isErrorKey(key)) throw new InputError(unknownErrorInput(rawKey));
   const f = fieldByKey(key);
   const field = `error.${f.flag}`;
   const parsed = interpret(field, key, raw);

@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import { InputError, showValue, type InputProblem } from '../errors.js';
+import { unknownErrorInput } from './error-model.js';
 import { MAX_READINGS, acceptedShape, dedupe, isAbsent, parseCheckedInputs } from './checked-inputs.js';
 import {
   BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS,
@@ -103,7 +104,15 @@ export function checkRawShape(raw: unknown, where = 'inputs'): RawInputs {
     throw new InputError({ field: where, value: showValue(raw), accepted: 'a JSON object of measurement keys' });
   }
   const result = RawInputsSchema.safeParse(raw);
-  if (result.success) return result.data;
+  if (result.success) {
+    // zod drops an `errors` entry named "__proto__" (it cannot be an own key of a plain object):
+    // an entry that did not survive names no input, and is refused, never dropped in silence.
+    const given = (raw as Record<string, unknown>).errors;
+    const kept = result.data.errors ?? {};
+    const lost = typeof given === 'object' && given !== null ? Object.keys(given).filter((k) => !Object.hasOwn(kept, k)) : [];
+    if (lost.length) throw new InputError(lost.map(unknownErrorInput));
+    return result.data;
+  }
   const problems: InputProblem[] = [];
   for (const issue of result.error.issues) {
     if (issue.code === 'unrecognized_keys') {

@@ -14,7 +14,8 @@ export function canPrompt(opts: Record<string, unknown>): boolean {
 
 /** Raw inputs from `--input` and flags (flags win). */
 export function gatherRaw(opts: Record<string, unknown>, inputFile: string | undefined): RawInputs {
-  const fromFile = inputFile ? readVisitFile(inputFile) : {};
+  // `--input ""` is a bad path, not an absent option: readVisitFile refuses it.
+  const fromFile = inputFile !== undefined ? readVisitFile(inputFile) : {};
   return mergeRaw(fromFile, rawFromOptions(opts));
 }
 

@@ -14,11 +14,12 @@
  * the target only when the whole run succeeded. Progress goes to stderr, on a terminal only.
  */
 import { availableParallelism } from 'node:os';
-import { createReadStream, createWriteStream, fstatSync } from 'node:fs';
+import { createWriteStream } from 'node:fs';
 import type { Writable } from 'node:stream';
 import { Worker } from 'node:worker_threads';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { InputError, showValue } from '../errors.js';
+import { BATCH_FILE, openInputStream } from '../io/read-input.js';
 import { info } from './messages.js';
 import { beginSafeWrite, checkOutputPath, writeFault, type SafeWrite } from '../io/safe-write.js';
 import { BatchSheet, RecordPieces } from '../records/batch-row.js';
@@ -35,12 +36,6 @@ const MAX_WORKERS = 3;
 const WORKER_DEPTH = 3;
 /** Pieces computed or under way but not yet written: the bound on memory. */
 const MAX_PENDING = 16;
-
-function openProblem(path: string, err: unknown, field: string): InputError {
-  const code = (err as NodeJS.ErrnoException).code;
-  const reason = code === 'ENOENT' ? 'file or folder not found' : code === 'EISDIR' ? 'is a folder' : code === 'EACCES' ? 'permission denied' : `cannot be opened (${code ?? 'error'})`;
-  return new InputError({ field, value: showValue(path), reason, accepted: field === 'out' ? 'a file path in an existing folder you can write to' : 'a readable CSV file with a header row (docs/batch.md)' });
-}
 
 function write(stream: Writable, bytes: Uint8Array): Promise<void> {
   if (bytes.length === 0) return Promise.resolve();
@@ -212,17 +207,10 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   const outPath = opts.out !== undefined ? checkOutputPath(opts.out, outRule) : undefined;
   const showProgress = Boolean(process.stderr.isTTY);
 
-  const input = createReadStream(inPath, { highWaterMark: CHUNK_BYTES, encoding: 'utf8' });
-  const inputFd = await new Promise<number>((ok, fail) => {
-    input.once('open', (fd) => ok(fd));
-    input.once('error', (err) => fail(openProblem(inPath, err, 'batch file')));
-  });
-  const inputStat = fstatSync(inputFd);
-  if (inputStat.isDirectory()) {
-    input.destroy();
-    throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'is a folder', accepted: 'a readable CSV file with a header row (docs/batch.md)' });
-  }
-  const workers = workerCount(inputStat.isFile() ? inputStat.size : 0);
+  // The one input reader: a regular file (or `-`, standard input) within the batch limit, checked before
+  // a byte is read, so a folder, a FIFO or /dev/zero is refused at once.
+  const input = openInputStream(inPath, BATCH_FILE, CHUNK_BYTES);
+  const workers = workerCount(input.size ?? 0);
 
   let output: Writable = process.stdout;
   let safe: SafeWrite | undefined;
@@ -231,7 +219,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
     try {
       safe = beginSafeWrite(String(opts.out), outRule);
     } catch (err) {
-      input.destroy();
+      input.close();
       throw err;
     }
     const file = createWriteStream('', { fd: safe.fd, autoClose: false, highWaterMark: CHUNK_BYTES });
@@ -241,7 +229,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input as AsyncIterable<string>, output, workers, (rows) => {
+    counts = await streamRows(input.chunks, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
     if (!counts.header) {
@@ -253,7 +241,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
       safe.commit();
     }
   } catch (err) {
-    input.destroy();
+    input.close();
     // The reader of standard output went away (e.g. `| head`): stop quietly, as Unix tools do.
     if (!safe && (err as NodeJS.ErrnoException).code === 'EPIPE') return;
     if (safe) {

@@ -4,7 +4,8 @@
  * command that needs them runs.
  */
 import { Command, CommanderError } from 'commander';
-import { EXIT_FILE_FAULT, FileFault, InputError, plainCause } from '../errors.js';
+import { EXIT_FILE_FAULT, FileFault, InputError, plainCause, showValue } from '../errors.js';
+import { sanitizeText } from '../text/sanitize.js';
 import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
@@ -36,7 +37,7 @@ export function buildProgram(): Command {
     .description('assess one visit from flags, a visit file or prompts');
   addMeasurementOptions(assess);
   assess
-    .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
+    .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
     .option('--json', 'print one JSON object (docs/json-output.md)')
     .option('--recheck', 'show the method variants side by side')
@@ -106,17 +107,17 @@ function trackInputFile(program: Command): void {
 export function commanderMessage(text: string): string {
   const message = text.replace(/^error:\s*/, '').trim();
   const rules: [RegExp, (m: RegExpExecArray) => string][] = [
-    [/^unknown option '([^']+)'(.*)$/s, (m) => `option: got "${m[1]}"; unknown${m[2] ? ` (${m[2].replace(/^[\s\n]*\(?|\)?$/g, '').trim()})` : ''}; accepted: an option listed by --help`],
+    [/^unknown option '([^']+)'(.*)$/s, (m) => `option: got ${showValue(m[1])}; unknown${m[2] ? ` (${m[2].replace(/^[\s\n]*\(?|\)?$/g, '').trim()})` : ''}; accepted: an option listed by --help`],
     [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
     [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
     [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
-    [/^unknown command '([^']+)'$/s, (m) => `command: got "${m[1]}"; accepted: assess, demo, record, export, batch, report, scenario, synthetic (see --help)`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got ${showValue(m[1])}; accepted: assess, demo, record, export, batch, report, scenario, synthetic (see --help)`],
   ];
   for (const [pattern, format] of rules) {
     const m = pattern.exec(message);
-    if (m) return `elastimate: ${format(m)}\n`;
+    if (m) return `elastimate: ${sanitizeText(format(m))}\n`;
   }
-  return `elastimate: ${message}; accepted: see --help\n`;
+  return `elastimate: ${sanitizeText(message)}; accepted: see --help\n`;
 }
 
 export async function main(argv: string[]): Promise<number> {

@@ -4,6 +4,7 @@
  * inputs are asked for on a terminal, offering the previous visit's values
  * for what rarely changes; elsewhere they are one error listing them all.
  */
+import { sanitizeText } from '../text/sanitize.js';
 import { assess } from '../assessment/assess.js';
 import { missingRequired, type RawInputs } from '../assessment/inputs.js';
 import { VALVE_FLAGS } from '../assessment/fields.js';
@@ -122,7 +123,7 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
   for (const b of result.backups) info(`the file was upgraded to the current format; the previous version is kept as ${b}`);
   const r = assessment.results;
   process.stdout.write(
-    `${result.created ? 'Created' : 'Updated'} ${path}: subject ${result.file.subject.id}, visit ${index} of ${ordered.length} on ${date}.\n` +
+    `${result.created ? 'Created' : 'Updated'} ${path}: subject ${sanitizeText(result.file.subject.id)}, visit ${index} of ${ordered.length} on ${date}.\n` +
       `  Ea ${formatQuantity(r.ea)}, Ees ${formatQuantity(r.ees)}, Ea/Ees ${formatQuantity(r.eaEes)} (methods ${assessment.methodsVersion}; research use only, not a diagnosis).\n` +
       (assessment.flags.some((f) => f.level !== 'note') ? `  ${assessment.flags.filter((f) => f.level !== 'note').length} check(s) fired: see \`elastimate record show ${path}\`.\n` : ''),
   );

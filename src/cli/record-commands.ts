@@ -24,7 +24,7 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
   add
     .option('--birth-year <year>', 'subject\'s birth year (stored with the subject; age at each visit follows from it)')
     .option('--note <text>', 'free-text note for this visit (no names)')
-    .option('--input <file>', 'visit file in JSON (docs/visit-file.md); flags override it')
+    .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
     .addHelpText('after', '\n--sex and --birth-year describe the subject and are stored once; other flags belong to this visit.')
     .action(async (file: string, opts: Record<string, unknown>, cmd: Command) => {
@@ -66,7 +66,7 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .option('--note <text>', 'new note (an empty text removes it)')
     .option('--unset <input>', 'remove an input from the visit, e.g. --unset sv (repeatable)', collect)
     .option('--birth-year <year>', 'subject\'s birth year')
-    .option('--input <file>', 'visit file in JSON whose values replace the visit\'s; flags override it')
+    .option('--input <file>', 'visit file in JSON (or - for standard input) whose values replace the visit\'s; flags override it')
     .option('--yes', 'do not ask for confirmation')
     .action(async (file: string, visit: string, opts: Record<string, unknown>, cmd: Command) => {
       const { runRecordEdit } = await import('./record-edit-command.js');
@@ -98,7 +98,7 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
   program
     .command('batch')
     .description('results for every row of a cohort CSV, streamed (docs/batch.md)')
-    .argument('<in.csv>', 'CSV with a header row; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')
+    .argument('<in.csv>', 'CSV with a header row, or - for standard input; columns named like the flags (sbp, dbp, hr, edv, esv, ef, sv, pep, et, …)')
     .option('--out <file>', 'write to this file (replaced only when the run completes) instead of standard output')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runBatch } = await import('./batch-command.js');

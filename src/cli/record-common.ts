@@ -31,8 +31,7 @@ export function parseNoteOption(value: unknown): string | undefined {
   const text = String(value);
   const checked = VisitSchema.shape.note.safeParse(text);
   if (!checked.success) {
-    const shown = text.length > 40 ? `${JSON.stringify(text.slice(0, 40))}… (${text.length.toLocaleString('en-US')} characters)` : showValue(text);
-    throw new InputError({ field: 'note', value: shown, accepted: checked.error.issues[0]?.message ?? 'a shorter note' });
+    throw new InputError({ field: 'note', value: showValue(text), accepted: checked.error.issues[0]?.message ?? 'a shorter note' });
   }
   return text;
 }

@@ -3,6 +3,7 @@
  * change or drop one visit after a confirmation (a prompt on a terminal,
  * `--yes` in scripts), keeping a backup of the file as it was.
  */
+import { sanitizeText } from '../text/sanitize.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS } from '../assessment/fields.js';
 import { RawInputsSchema, type RawInputs } from '../assessment/inputs.js';
 import { InputError, showValue } from '../errors.js';
@@ -75,7 +76,7 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   // The edited visit must still compute, with the subject's data underneath.
   visitInputs(subject, edited);
 
-  const what = `changing visit ${hit.index} (${hit.visit.date}) of subject ${file.subject.id}`;
+  const what = `changing visit ${hit.index} (${hit.visit.date}) of subject ${sanitizeText(file.subject.id)}`;
   process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}:\n${changes.map((c) => `  ${c}`).join('\n')}\n`);
   if (!(await confirmChange(opts, 'Save this change? A backup of the file is kept.', what))) {
     process.stdout.write('Nothing changed.\n');
@@ -97,8 +98,8 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
 export async function runRecordRemove(path: string, selector: string, opts: Record<string, unknown>): Promise<void> {
   const file = readSubjectFile(path);
   const hit = findVisit(file, selector);
-  const what = `removing visit ${hit.index} (${hit.visit.date}) of subject ${file.subject.id}`;
-  process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}${hit.visit.note ? ` (note: ${hit.visit.note.replace(/\s+/g, ' ').slice(0, 80)})` : ''}.\n`);
+  const what = `removing visit ${hit.index} (${hit.visit.date}) of subject ${sanitizeText(file.subject.id)}`;
+  process.stdout.write(`${what[0]!.toUpperCase()}${what.slice(1)}${hit.visit.note ? ` (note: ${sanitizeText(hit.visit.note.replace(/\s+/g, ' ').slice(0, 80))})` : ''}.\n`);
   if (!(await confirmChange(opts, `Remove visit ${hit.index}? A backup of the file is kept.`, what))) {
     process.stdout.write('Nothing changed.\n');
     return;

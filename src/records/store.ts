@@ -23,11 +23,13 @@
  * Nothing here reads the clock on its own: the caller passes `now`.
  */
 import * as fs from 'node:fs';
-import { accessSync, constants as fsConstants, lstatSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { accessSync, constants as fsConstants, lstatSync, rmSync, statSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { basename, dirname, resolve } from 'node:path';
 import { FileFault, InputError, plainCause, showValue, type InputProblem } from '../errors.js';
 import { fileKind, writeFileSafely, writeNewFileSafely } from '../io/safe-write.js';
+import { SUBJECT_FILE, readInputFileIfExists } from '../io/read-input.js';
+import { parseJsonText } from '../io/read-json.js';
 import { stringifySafe } from '../render/json.js';
 import { SUBJECT_VERSIONS, migrateDocument, type Migration, type SchemaVersions } from './migrations.js';
 import { SUBJECT_FORMAT, SubjectFileSchema, type SubjectFile } from './subject-schema.js';
@@ -104,29 +106,18 @@ function fileProblem(path: string, reason: string, accepted = `a subject file ($
   return new InputError({ field: 'subject file', value, reason, accepted });
 }
 
+/**
+ * The bytes of a subject file, or null when it does not exist yet: the one
+ * input reader (a regular file within the subject-file limit, src/io/read-input.ts).
+ */
 function readBytes(path: string): Buffer | null {
-  try {
-    // A FIFO or a device would block or never end: only a regular file (reached through a link or not) is read.
-    const kind = fileKind(statSync(path));
-    if (kind) throw fileProblem(path, `is ${kind}`);
-    return readFileSync(path);
-  } catch (err) {
-    if (err instanceof InputError) throw err;
-    const code = (err as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT') return null;
-    const reason = code === 'EISDIR' ? 'is a folder' : code === 'EACCES' ? 'permission denied' : `cannot be read (${code ?? 'error'})`;
-    throw fileProblem(path, reason);
-  }
+  return readInputFileIfExists(path, SUBJECT_FILE);
 }
 
 /** Parse and check the bytes of a subject file; never writes. */
 function parseSubjectBytes(path: string, bytes: Buffer, versions: SchemaVersions): Loaded {
-  let data: unknown;
-  try {
-    data = JSON.parse(bytes.toString('utf8'));
-  } catch (err) {
-    throw fileProblem(path, `not valid JSON (${(err as Error).message}); the file was left untouched`);
-  }
+  // The one JSON reader: a duplicate key anywhere (a second, empty "visits") is refused, not resolved.
+  const data = parseJsonText(bytes.toString('utf8'), { field: 'subject file', value: showValue(path), accepted: `a subject file (${DOC_HINT})`, note: 'the file was left untouched' });
   if (typeof data !== 'object' || data === null || Array.isArray(data)) {
     throw fileProblem(path, 'not a JSON object; the file was left untouched');
   }

@@ -15,6 +15,7 @@ import { RESULT_KEYS, RESULT_UNITS, type ResultKey, type Results } from '../asse
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
+import { sanitizeText } from '../text/sanitize.js';
 import { decimalsFor, formatNumber } from './format.js';
 
 /** RFC 4180 line end. */
@@ -26,8 +27,17 @@ export const CRLF = '\r\n';
  */
 export function csvText(rows: readonly (readonly string[])[]): string {
   let text = '';
-  for (const row of rows) text += csvFormatRow(row) + CRLF;
+  for (const row of rows) text += csvFormatRow(row.map(csvCellText)) + CRLF;
   return text;
+}
+
+/**
+ * A text cell's content before quoting: control characters other than tab and
+ * line breaks (which CSV quoting carries) made visible by the one sanitiser,
+ * so no raw ESC or C1 byte reaches a file that a terminal or spreadsheet opens.
+ */
+export function csvCellText(cell: string): string {
+  return sanitizeText(cell, { keepWhitespace: true });
 }
 
 const SCALE = [1, 10, 100, 1000, 1e4, 1e5, 1e6, 1e7, 1e8];
@@ -112,10 +122,10 @@ export class CsvBytes {
   }
 
   /**
-   * A text cell. Plain ASCII without a comma, a double quote or a line break
-   * (nearly every cell) is copied as it is, which is what d3-dsv's
-   * csvFormatValue returns for it; any other cell is quoted by csvFormatValue
-   * where needed and encoded as UTF-8 by Node.
+   * A text cell. Printable ASCII without a comma or a double quote (nearly
+   * every cell) is copied as it is, which is what d3-dsv's csvFormatValue
+   * returns for it; any other cell goes through csvCellText, is quoted by
+   * csvFormatValue where needed and encoded as UTF-8 by Node.
    */
   text(cell: string): void {
     const n = cell.length;
@@ -125,8 +135,8 @@ export class CsvBytes {
     let p = start;
     for (let i = 0; i < n; i++) {
       const c = cell.charCodeAt(i);
-      if (c >= 0x80 || c === 34 || c === 44 || c === 10 || c === 13) {
-        const t = csvFormatValue(cell);
+      if (c >= 0x7f || c < 0x20 || c === 34 || c === 44) {
+        const t = csvFormatValue(csvCellText(cell));
         this.room(t.length * 3);
         this.pos = start + this.buf.write(t, start, 'utf8');
         return;

@@ -11,6 +11,7 @@
  * (filled circles vs open squares) and in line weight; the four kinds of line
  * differ in dash pattern, and each is named in the legend and next to it.
  */
+import { escapeMarkup } from '../text/sanitize.js';
 import { volumeOnEndDiastolicCurve, pressureOnEndDiastolicCurve } from '../physiology/end-diastolic-pressure-volume.js';
 import { loopOutline, type LoopGeometry } from '../assessment/mechanics.js';
 import { formatNumber } from './format.js';
@@ -181,7 +182,8 @@ export function diagramNotes(visits: readonly PvVisit[]): string[] {
   return notes;
 }
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+/** Escaping of user and report text for HTML and SVG: the one sanitiser (src/text/sanitize.ts). */
+const esc = escapeMarkup;
 const n2 = (x: number) => formatNumber(x, 2);
 
 export function renderPvDiagram(visits: readonly PvVisit[], options: PvDiagramOptions = {}): string {

@@ -4,6 +4,7 @@
  * one printed page). Pure: a ReportModel in, a string out. The Markdown
  * version (report-markdown.ts) is built from the same model and helpers.
  */
+import { escapeMarkup } from '../text/sanitize.js';
 import type { Assessment } from '../assessment/assess.js';
 import type { ResultKey } from '../assessment/graph/index.js';
 import type { Quantity } from '../assessment/result.js';
@@ -48,7 +49,8 @@ export interface ReportModel {
 
 export const REPORT_TITLE = 'Ventricular–arterial coupling: case-conference summary';
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+/** Escaping of user and report text for HTML and SVG: the one sanitiser (src/text/sanitize.ts). */
+const esc = escapeMarkup;
 
 export function selectedVisit(m: ReportModel): ReportVisit {
   return m.visits[m.selected]!;

@@ -3,6 +3,7 @@
  * beside it (linked by relative name). Same model and content as the HTML
  * page (report-html.ts). Pure: the caller writes the files.
  */
+import { escapeMarkdownInline } from '../text/sanitize.js';
 import { decimalsFor, formatNumber } from './format.js';
 import {
   REFERENCES, REPORT_TITLE, VISIT_COLUMNS, comparedVisit, keyRows, mechanicsRows, modelLoopCaption, provenanceLine, pvDiagramSvg, reportCaveats,
@@ -19,7 +20,7 @@ export interface MarkdownReport {
 
 /** Escape text for a Markdown table cell or paragraph. */
 function md(text: string): string {
-  return text.replace(/\\/g, '\\\\').replace(/\|/g, '\\|').replace(/([*_`[\]<>#])/g, '\\$1').replace(/\r?\n/g, ' ');
+  return escapeMarkdownInline(text);
 }
 
 function table(headers: string[], rows: string[][], numeric: (i: number) => boolean = () => false): string[] {

@@ -13,6 +13,7 @@ import { decimalsFor, formatNumber, formatValue, pad, padLeft } from './format.j
 import { INPUT_UNITS } from './json.js';
 import { plainStyle, type Style } from './style.js';
 import { wrap } from './terminal.js';
+import { sanitizeText } from '../text/sanitize.js';
 
 export const SERIES_FORMAT = 'elastimate-series';
 export const COMPARISON_FORMAT = 'elastimate-comparison';
@@ -41,7 +42,7 @@ function subjectLine(file: SubjectFile, visits: number): string {
   if (s.birthYear !== undefined) parts.push(`born ${s.birthYear}`);
   if (s.height !== undefined) parts.push(`height ${typeof s.height === 'number' ? formatValue(s.height, 'cm') : s.height}`);
   parts.push(`${visits} visit${visits === 1 ? '' : 's'}`);
-  return parts.join(' · ');
+  return sanitizeText(parts.join(' · '));
 }
 
 function methodsLine(methodsVersion: string): string {
@@ -112,7 +113,7 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
     out.push('');
     out.push(s.heading('Notes'));
     for (const e of notes) {
-      const lines = wrap((e.visit.note ?? '').replace(/\s+/g, ' '), 90);
+      const lines = wrap(sanitizeText((e.visit.note ?? '').replace(/\s+/g, ' ')), 90);
       lines.forEach((l, i) => out.push(`  ${i === 0 ? pad(`${e.index}`, 4) : '    '}${l}`));
     }
   }
@@ -222,7 +223,7 @@ export function comparisonSummary(c: Comparison): string[] {
 export function renderComparison(file: SubjectFile, from: VisitRef, to: VisitRef, c: Comparison, style: Style = plainStyle, referral?: string): string {
   const s = style;
   const out: string[] = [];
-  out.push(s.strong(`elastimate comparison: subject ${file.subject.id}, visit ${from.index} (${from.date}) → visit ${to.index} (${to.date})`));
+  out.push(s.strong(`elastimate comparison: subject ${sanitizeText(file.subject.id)}, visit ${from.index} (${from.date}) → visit ${to.index} (${to.date})`));
   out.push(s.dim(methodsLine(c.methodsVersion)));
   for (const row of c.rows) {
     out.push('');

@@ -9,6 +9,7 @@
  * Visits beyond it are drawn as filled markers, visits within it as open
  * ones, so the distinction survives greyscale print.
  */
+import { escapeMarkup } from '../text/sanitize.js';
 import { formatNumber } from './format.js';
 import { niceTicks } from './pv-diagram.js';
 
@@ -44,7 +45,8 @@ const BAND = '#e8e8e8';
 const BAND_EDGE = '#8c8c8c';
 const REFERENCE = '#D55E00';
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+/** Escaping of user and report text for HTML and SVG: the one sanitiser (src/text/sanitize.ts). */
+const esc = escapeMarkup;
 const n2 = (x: number) => formatNumber(x, 2);
 
 /** The band around the first computable visit; null without a baseline or limit. */

@@ -103,7 +103,7 @@ describe('batch', () => {
 
   it('refuses, with exit 2, a missing file, an empty one, a header without measurement columns, and the input as output', async () => {
     const refusals: [string[], RegExp][] = [
-      [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file or folder not found/],
+      [['batch', join(dir, 'nope.csv')], /batch file: got ".*nope\.csv"; file not found/],
       [['batch', input, '--out', input], /out: got .*; this is a file the command reads and would be overwritten/],
     ];
     const empty = join(dir, 'empty.csv');
