@@ -3,7 +3,7 @@
  */
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, ok, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, ok, requireBuild, runCli, type CliRun, expectRefusal } from './fixtures/run-cli.js';
 
 const VISIT = join(ROOT, 'cases', 'hypertension-trial.visit.json');
 const SUBJECT = join(ROOT, 'cases', 'cardio-oncology.subject.json');
@@ -28,16 +28,6 @@ function json(run: CliRun): ScenarioJson {
   ok(run);
   expect(run.stdout).not.toMatch(FORBIDDEN_WORDS);
   return JSON.parse(run.stdout) as ScenarioJson;
-}
-
-function expectRefusal(run: CliRun, field: string, value: string): void {
-  expect(run.timedOut).toBe(false);
-  expect(run.code).toBe(2);
-  expect(run.stderr).toMatch(new RegExp(`^elastimate: ${field.replace(/[.-]/g, '\\$&')}: `, 'm'));
-  expect(run.stderr).toContain(value);
-  expect(run.stderr).toContain('accepted:');
-  expect(run.stderr).not.toMatch(STACK_FRAME);
-  expect(run.stdout).toBe('');
 }
 
 beforeAll(() => requireBuild());
