@@ -2,7 +2,7 @@
 // Bundles the tsc output (dist/cli/main.js) into dist/bundle/: one ES module graph with zod and
 // commander inlined loads in a fraction of the time of their many-file module trees. Heavy,
 // rarely needed packages stay external and lazily imported (mathjs's own single-file bundle,
-// inquirer, chalk). bin/elastimate.js uses the bundle only when it is newer than dist/cli.
+// inquirer, chalk, dcmjs for DICOM SR import). bin/elastimate.js uses the bundle only when it is newer than dist/cli.
 import { build } from 'esbuild';
 import { rmSync } from 'node:fs';
 import { dirname, join } from 'node:path';
@@ -27,7 +27,7 @@ await build({
   minify: true,
   legalComments: 'linked',
   logLevel: 'warning',
-  external: ['mathjs', 'inquirer', '@inquirer/*', 'chalk'],
+  external: ['mathjs', 'inquirer', '@inquirer/*', 'chalk', 'dcmjs'],
   // commander is CommonJS: give the ES module bundle a require of its own.
   banner: { js: "import { createRequire as __elastimateRequire } from 'node:module'; const require = __elastimateRequire(import.meta.url);" },
 });

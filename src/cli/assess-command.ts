@@ -48,31 +48,37 @@ export async function completeRaw(raw: RawInputs, opts: Record<string, unknown>)
 export async function runAssess(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
   const diagrams = opts.svg !== undefined || opts.sketch === true || opts.modelLoop === true ? await import('./diagram-options.js') : null;
   diagrams?.checkModelLoopOption(opts);
-  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputFile ? [inputFile] : []) : null;
+  // Files this run reads (a visit file, SR files): an output may never be one of them.
+  const inputPaths = [...(inputFile ? [inputFile] : []), ...(Array.isArray(opts.sr) ? opts.sr.map(String) : [])];
+  const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputPaths) : null;
   const wantsUncertainty = opts.uncertainty === true || opts.draws !== undefined || opts.seed !== undefined;
   const uncertainty = wantsUncertainty ? await import('../assessment/uncertainty.js') : null;
   const draws = uncertainty && opts.draws !== undefined ? uncertainty.parseDraws(opts.draws) : undefined;
   const seed = uncertainty && opts.seed !== undefined ? uncertainty.parseSeed(opts.seed) : undefined;
-  const raw = await completeRaw(gatherRaw(opts, inputFile), opts);
+  const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
+  const imported = sr ? sr.underGiven(await sr.gatherSr(opts), gatherRaw(opts, inputFile)) : null;
+  const raw = await completeRaw(imported ? imported.raw : gatherRaw(opts, inputFile), opts);
+  const inputSources = sr && imported ? sr.sourceTexts(imported.sources) : undefined;
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
   const modelLoop = diagrams ? await diagrams.modelLoopOption(opts, result) : undefined;
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputFile ? [inputFile] : [], modelLoop);
-  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts);
-  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true });
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputPaths, modelLoop);
+  if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, inputSources);
+  else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) });
   if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true, modelLoop);
 }
 
 /** The report with 95 % ranges, variance shares and the method's own error (docs/uncertainty.md). */
-async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>): Promise<void> {
+async function printWithUncertainty(result: Assessment, report: UncertaintyReport, opts: Record<string, unknown>, inputSources?: Record<string, string>): Promise<void> {
   const view = await import('../render/uncertainty.js');
   if (opts.json === true) {
     const { stringifySafe } = await import('../render/json.js');
     const { toolVersion } = await import('./package-info.js');
-    process.stdout.write(stringifySafe(view.assessmentToJsonWithUncertainty(result, report, toolVersion())) + '\n');
+    const json = view.assessmentToJsonWithUncertainty(result, report, toolVersion());
+    process.stdout.write(stringifySafe(inputSources ? { ...json, inputSources } : json) + '\n');
     return;
   }
   const { terminalStyle } = await import('./output.js');
-  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true }) + '\n');
+  process.stdout.write(view.renderTerminalWithUncertainty(result, report, { style: await terminalStyle(), recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) }) + '\n');
 }

@@ -10,6 +10,7 @@ import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
 import { registerScenarioCommand, registerSyntheticCommand } from './scenario-options.js';
+import { addSrOption } from './sr-option.js';
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_CANCELLED = 130;
@@ -36,6 +37,7 @@ export function buildProgram(): Command {
     .command('assess')
     .description('assess one visit from flags, a visit file or prompts');
   addMeasurementOptions(assess);
+  addSrOption(assess);
   assess
     .option('--input <file>', 'visit file in JSON (docs/visit-file.md), or - for standard input; flags override it')
     .option('--no-input', 'never prompt: missing inputs are an error')
@@ -111,7 +113,7 @@ export function commanderMessage(text: string): string {
     [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
     [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
     [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
-    [/^unknown command '([^']+)'$/s, (m) => `command: got ${showValue(m[1])}; accepted: assess, demo, record, export, batch, report, scenario, synthetic (see --help)`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got ${showValue(m[1])}; accepted: assess, demo, record, export, batch, sr-cohort, report, scenario, synthetic (see --help)`],
   ];
   for (const [pattern, format] of rules) {
     const m = pattern.exec(message);

@@ -11,7 +11,9 @@ export async function terminalStyle(stream: { isTTY?: boolean } = process.stdout
 
 export async function printAssessment(a: Assessment, opts: { json?: boolean } & TerminalOptions): Promise<void> {
   if (opts.json) {
-    process.stdout.write(stringifySafe(assessmentToJson(a, toolVersion())) + '\n');
+    const json = assessmentToJson(a, toolVersion());
+    // Where each input came from, when some came from a DICOM SR (docs/sr-import.md).
+    process.stdout.write(stringifySafe(opts.inputSources ? { ...json, inputSources: opts.inputSources } : json) + '\n');
     return;
   }
   const style = opts.style ?? (await terminalStyle());

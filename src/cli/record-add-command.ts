@@ -79,11 +79,15 @@ function visitOnly(completed: RawInputs, fromSubject: RawInputs, givenForVisit: 
 }
 
 export async function runRecordAdd(path: string, opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
-  const date = parseDateOption(opts.date);
   const id = opts.subject === undefined ? undefined : checkSubjectId(opts.subject);
   const birthYear = parseBirthYear(opts.birthYear);
   const note = parseNoteOption(opts.note);
-  const raw = gatherRaw(opts, inputFile);
+  const given = gatherRaw(opts, inputFile);
+  // A DICOM SR (--sr): its values under the given ones; the visit date defaults to its study date.
+  const sr = opts.sr !== undefined ? await import('./sr-input.js') : null;
+  const imported = sr ? await sr.gatherSr(opts) : null;
+  const date = parseDateOption(opts.date ?? imported?.studyDate ?? undefined);
+  const { raw, sources } = sr ? sr.underGiven(imported, given) : { raw: given, sources: {} };
   const sex = raw.sex;
   delete raw.sex;
 
@@ -101,7 +105,8 @@ export async function runRecordAdd(path: string, opts: Record<string, unknown>, 
     merged = await collectInteractively(merged, { suggestions: suggestionsFrom(existing) });
   }
   const inputs = tidyEntered(visitOnly(merged, fromSubject, raw));
-  const visit: Visit = { date, inputs, ...(note !== undefined ? { note } : {}) };
+  const kept = sr ? sr.sourcesStillUsed(sources, imported, inputs) : {};
+  const visit: Visit = { date, inputs, ...(note !== undefined ? { note } : {}), ...(Object.keys(kept).length > 0 ? { sources: kept } : {}) };
   // Validate now, with the subject's data underneath, so nothing invalid is stored.
   const assessment = assess(visitInputs(subject, visit));
 

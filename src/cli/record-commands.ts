@@ -4,6 +4,7 @@
  */
 import type { Command } from 'commander';
 import { addMeasurementOptions } from './measurement-options.js';
+import { addSrOption } from './sr-option.js';
 
 function collect(value: string, previous: string[] | undefined): string[] {
   return [...(previous ?? []), value];
@@ -19,8 +20,9 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .description('add a visit, creating the subject file with the first one')
     .argument('<file>', 'subject file, e.g. CO-203.subject.json')
     .option('--subject <id>', 'pseudonymous subject id, e.g. CO-203 (needed to create the file)')
-    .option('--date <YYYY-MM-DD>', 'visit date');
+    .option('--date <YYYY-MM-DD>', 'visit date (default: the study date of --sr)');
   addMeasurementOptions(add);
+  addSrOption(add);
   add
     .option('--birth-year <year>', 'subject\'s birth year (stored with the subject; age at each visit follows from it)')
     .option('--note <text>', 'free-text note for this visit (no names)')
@@ -93,6 +95,17 @@ export function registerRecordCommands(program: Command, inputFileOf: (cmd: Comm
     .action(async (files: string[], opts: Record<string, unknown>) => {
       const { runExport } = await import('./export-command.js');
       await runExport(files, opts);
+    });
+
+  program
+    .command('sr-cohort')
+    .description('a folder of DICOM SR files of echo studies as a cohort CSV for batch, one row per study (docs/sr-import.md)')
+    .argument('<folder>', 'folder of SR files (one or more per study)')
+    .option('--ids <file>', 'your CSV mapping SR file names to pseudonymous ids (columns file, subject); without it the subject column is left for you to fill')
+    .option('--out <file>', 'write to this CSV file (atomically) instead of standard output')
+    .action(async (folder: string, opts: Record<string, unknown>) => {
+      const { runSrCohort } = await import('./sr-cohort-command.js');
+      await runSrCohort(folder, opts);
     });
 
   program

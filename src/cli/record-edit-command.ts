@@ -56,7 +56,12 @@ export async function runRecordEdit(path: string, selector: string, opts: Record
   const inputs: Record<string, unknown> = { ...hit.visit.inputs, ...given };
   if (given.errors || hit.visit.inputs.errors) inputs.errors = { ...(hit.visit.inputs.errors ?? {}), ...(given.errors ?? {}) };
   for (const key of unset) delete inputs[key];
-  const edited: Visit = { date, inputs: tidyEntered(inputs as RawInputs), ...(note !== undefined && note !== '' ? { note } : {}) };
+  const editedInputs = tidyEntered(inputs as RawInputs);
+  // An imported input keeps its source (docs/sr-import.md) only while its value is unchanged.
+  const sources = Object.fromEntries(
+    Object.entries(hit.visit.sources ?? {}).filter(([k]) => JSON.stringify((editedInputs as Record<string, unknown>)[k]) === JSON.stringify((hit.visit.inputs as Record<string, unknown>)[k])),
+  );
+  const edited: Visit = { date, inputs: editedInputs, ...(note !== undefined && note !== '' ? { note } : {}), ...(Object.keys(sources).length > 0 ? { sources } : {}) };
   const subject: SubjectInfo = { ...file.subject, ...(sex !== undefined ? { sex } : {}), ...(birthYear !== undefined ? { birthYear } : {}) };
 
   const changes: string[] = [];

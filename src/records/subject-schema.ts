@@ -44,12 +44,26 @@ export const SubjectIdSchema = z
     message: 'printable characters without leading or trailing spaces, e.g. CO-203',
   });
 
+/** The provenance of one imported input: a DICOM SR concept, its method and the study date. */
+export const InputSourceSchema = z
+  .object({
+    from: z.literal('DICOM SR'),
+    code: z.string().max(64),
+    meaning: z.string().max(200),
+    method: z.string().max(80).optional(),
+    studyDate: VisitDateSchema.optional(),
+    how: z.string().max(120),
+  })
+  .strict();
+
 export const VisitSchema = z
   .object({
     date: VisitDateSchema,
     /** The inputs as entered, with their units (same keys as a visit file). */
     inputs: RawInputsSchema,
     note: z.string().max(10_000, { message: 'a note of at most 10,000 characters' }).optional(),
+    /** Where inputs came from when imported, by input key (docs/sr-import.md); typed inputs have none. */
+    sources: z.record(z.string(), InputSourceSchema).optional(),
   })
   .strict();
 

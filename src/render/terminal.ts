@@ -17,6 +17,8 @@ export interface TerminalOptions {
   recheck?: boolean;
   /** A title line, e.g. the subject id and visit date. */
   title?: string;
+  /** Where inputs came from when not typed (e.g. "from DICOM SR LN 79996-5 …"), by input key. */
+  inputSources?: Readonly<Record<string, string>>;
   /** Extra sections appended before the caveats (uncertainty, wall stress…). */
   extraSections?: { title: string; lines: string[] }[];
 }
@@ -37,7 +39,16 @@ export function renderTerminal(a: Assessment, options: TerminalOptions = {}): st
   out.push(s.dim(`methods ${a.methodsVersion}; research use only, not a diagnosis`));
 
   section('Inputs as used');
-  for (const row of inputRows(a)) out.push(`  ${pad(row.label, LABEL_WIDTH)}${row.value}${row.source ? s.dim('  ' + row.source) : ''}`);
+  for (const row of inputRows(a, options.inputSources)) {
+    const head = `  ${pad(row.label, LABEL_WIDTH)}${row.value}`;
+    // A long source (an imported value's provenance) continues under the value, wrapped to 100 columns.
+    if (row.source.length + head.length + 2 <= 100) out.push(`${head}${row.source ? s.dim('  ' + row.source) : ''}`);
+    else {
+      const [first, ...rest] = wrap(row.source, 100 - head.length - 2);
+      out.push(`${head}${s.dim('  ' + first)}`);
+      for (const more of rest.length ? wrap(rest.join(' '), 100 - LABEL_WIDTH - 6) : []) out.push(s.dim(`${' '.repeat(LABEL_WIDTH + 6)}${more}`));
+    }
+  }
 
   section('Pressures');
   line('End-systolic pressure (Pes)', r.pes);
@@ -119,10 +130,11 @@ interface InputRow {
   source: string;
 }
 
-function inputRows(a: Assessment): InputRow[] {
+function inputRows(a: Assessment, sources: Readonly<Record<string, string>> = {}): InputRow[] {
   const i = a.inputs;
   const rows: InputRow[] = [];
-  const numeric = (key: NumericKey, source = 'as entered') => {
+  const numeric = (key: NumericKey, typed = 'as entered') => {
+    const source = sources[key] ?? typed;
     const v = i[key as keyof typeof i] as number | null;
     if (v === null) return;
     const f = fieldByKey(key);

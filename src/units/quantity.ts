@@ -152,3 +152,27 @@ function withUnit(field: string, raw: unknown, kind: QuantityKind): number {
   if (!Number.isFinite(value)) throw new InputError({ field, value: showValue(raw), accepted });
   return value;
 }
+
+/**
+ * A measured value in one unit, in another unit of the same dimension (mathjs
+ * spellings, e.g. "mm" → "cm", "L" → "mL", "s" → "ms", "cm/s" → "m/s",
+ * "min^-1" → "min^-1"); null when the units are unknown to mathjs or of
+ * different dimensions. Rounded to twelve significant digits, as toInternalUnit
+ * rounds. Used for values that arrive with a coded unit (DICOM SR import).
+ */
+export function convertMeasured(value: number, from: string, to: string): number | null {
+  if (!Number.isFinite(value)) return null;
+  if (from === to) return value;
+  const math = mathjs();
+  let unit: MathUnit;
+  let target: MathUnit;
+  try {
+    unit = math.unit(`${value} ${from}`);
+    target = math.unit(`1 ${to}`);
+  } catch {
+    return null;
+  }
+  if (!unit.equalBase(target)) return null;
+  const converted = Number(unit.toNumber(to).toPrecision(12));
+  return Number.isFinite(converted) ? converted : null;
+}

@@ -11,7 +11,7 @@ describe('usage errors from the option parser', () => {
     [['record', 'show'], /^elastimate: file: missing; accepted: /],
     [['record', 'show', 'a', 'b'], /^elastimate: arguments: got 2; accepted: 1 for show/],
     [['assess', '--sbp'], /^elastimate: --sbp <values>: missing value; accepted: /],
-    [['frobnicate'], /^elastimate: command: got "frobnicate"; accepted: assess, demo, record, export, batch, report/],
+    [['frobnicate'], /^elastimate: command: got "frobnicate"; accepted: assess, demo, record, export, batch, sr-cohort, report/],
   ])('%j → one message, exit 2', async (args, pattern) => {
     const run = await runCli(args as string[]);
     expect(run.code).toBe(2);
