@@ -1,7 +1,7 @@
 /**
  * `elastimate batch <in.csv> [--out out.csv]`: a cohort spreadsheet in, the
  * same rows with results out (docs/batch.md). Streams: the input is read in
- * 64 KiB chunks, cut at record boundaries (records/batch-row.ts RecordPieces),
+ * 64 KiB chunks, cut at record boundaries (records/csv-records.ts RecordSplitter),
  * and each piece (about a thousand rows) is parsed by d3-dsv and computed
  * row by row into output bytes (BatchSheet), which are written in input order,
  * waiting for the output to drain; reading waits while too many pieces are
@@ -22,7 +22,8 @@ import { InputError, showValue } from '../errors.js';
 import { BATCH_FILE, openInputStream } from '../io/read-input.js';
 import { info } from './messages.js';
 import { beginSafeWrite, checkOutputPath, writeFault, type SafeWrite } from '../io/safe-write.js';
-import { BatchSheet, RecordPieces } from '../records/batch-row.js';
+import { BatchSheet } from '../records/batch-row.js';
+import { HeaderQuoteError, MAX_RECORD, RecordSplitter, RecordTooLongError, type Segment } from '../records/csv-records.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
 
@@ -61,7 +62,11 @@ function finish(stream: Writable): Promise<void> {
 }
 
 export interface BatchCounts {
-  rows: number;
+  /** Records read after the header. */
+  read: number;
+  /** Rows the output accepted. */
+  written: number;
+  /** Rows written with an error. */
   failed: number;
 }
 
@@ -112,8 +117,7 @@ class PieceWorker {
   }
 
   /** The input's header, before the first piece. */
-  header(header: string[]): void {
-    const message: HeaderMessage = { header };
+  header(message: HeaderMessage): void {
     this.worker.postMessage(message);
     this.hasHeader = true;
   }
@@ -146,60 +150,77 @@ function workerCount(sizeBytes: number): number {
  * The whole run against an opened input and output; returns the counts.
  * Pieces are written in input order whichever thread computed them.
  */
-async function streamRows(input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
-  const pieces = new RecordPieces();
-  const sheet = new BatchSheet(); // this thread's: reads the header, and computes pieces no worker has room for
+async function streamRows(inPath: string, input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
+  const splitter = new RecordSplitter();
+  let sheet: BatchSheet | undefined; // this thread's: reads the header, and computes pieces no worker has room for
   // Started before the first read, so they load while this thread reads the header and the first rows.
   const pool: PieceWorker[] = Array.from({ length: workers }, () => new PieceWorker());
   const slots: Slot[] = [];
   let seq = 0;
-  let rows = 0;
+  let read = 0;
+  let written = 0;
   let failed = 0;
   let started = false;
 
   const writeFirst = async () => {
     const slot = slots.shift()!;
     const done = slot.result ?? (await slot.settled);
-    rows += done.rows;
+    read += done.rows;
     failed += done.failed;
     await write(output, done.bytes);
-    onProgress(rows);
+    written += done.rows;
+    onProgress(written);
   };
 
-  const submit = async (text: string) => {
-    if (text === '') return;
-    const broken = pool.find((w) => w.failure !== undefined);
-    if (broken) throw broken.failure;
-    const worker = sheet.layout ? pool.find((w) => w.hasRoom()) : undefined;
-    if (worker) {
-      const slot: Slot = { result: undefined, settled: worker.run(seq++, text) };
-      slot.settled.then((c) => (slot.result = c), () => undefined);
-      slots.push(slot);
+  const here = (compute: (s: BatchSheet) => Uint8Array) => {
+    const s = (sheet ??= new BatchSheet(undefined, splitter.dialect));
+    const before = { rows: s.rows, failed: s.failed };
+    const bytes = compute(s);
+    const result = { bytes, rows: s.rows - before.rows, failed: s.failed - before.failed };
+    slots.push({ result, settled: Promise.resolve(result) });
+    seq++;
+    if (s.layout && !started) {
+      // The header has been read: tell the workers.
+      started = true;
+      for (const w of pool) w.header({ header: s.layout.header, dialect: s.layout.dialect });
+    }
+  };
+
+  const submit = async (segment: Segment) => {
+    if (segment.bad) {
+      here((s) => s.bad(segment.bad));
     } else {
-      const before = { rows: sheet.rows, failed: sheet.failed };
-      const bytes = sheet.piece(text);
-      const result = { bytes, rows: sheet.rows - before.rows, failed: sheet.failed - before.failed };
-      slots.push({ result, settled: Promise.resolve(result) });
-      seq++;
-      if (sheet.layout && !started) {
-        // The header has been read: say how clashing result columns are named, and tell the workers.
-        started = true;
-        for (const w of pool) w.header(sheet.layout.header);
-      }
+      const text = segment.text;
+      const broken = pool.find((w) => w.failure !== undefined);
+      if (broken) throw broken.failure;
+      const worker = sheet?.layout ? pool.find((w) => w.hasRoom()) : undefined;
+      if (worker) {
+        const slot: Slot = { result: undefined, settled: worker.run(seq++, text) };
+        slot.settled.then((c) => (slot.result = c), () => undefined);
+        slots.push(slot);
+      } else here((s) => s.piece(text));
     }
     while (slots.length > 0 && (slots[0]!.result !== undefined || slots.length >= MAX_PENDING)) await writeFirst();
   };
 
   try {
-    for await (const chunk of input) await submit(pieces.push(chunk));
-    await submit(pieces.end());
+    for await (const chunk of input) for (const segment of splitter.push(chunk)) await submit(segment);
+    for (const segment of splitter.end()) await submit(segment);
     while (slots.length > 0) await writeFirst();
     const broken = pool.find((w) => w.failure !== undefined);
     if (broken) throw broken.failure;
+  } catch (err) {
+    if (err instanceof HeaderQuoteError) {
+      throw new InputError({ field: `header, line ${err.bad.line}, column ${err.bad.column}`, value: showValue(err.bad.text), reason: `a double quote opens this column name and ${err.bad.reason}`, accepted: 'a header row whose quoted names are closed (docs/batch.md)' });
+    }
+    if (err instanceof RecordTooLongError) {
+      throw new InputError({ field: `batch file, line ${err.line}`, value: showValue(inPath), reason: `a record runs on for more than ${MAX_RECORD} characters without a line break`, accepted: 'a CSV file with a header row and one visit per record (docs/batch.md)' });
+    }
+    throw err;
   } finally {
     await Promise.all(pool.map((w) => w.close()));
   }
-  return { rows, failed, header: sheet.layout !== undefined };
+  return { read, written, failed, header: sheet?.layout !== undefined };
 }
 
 export async function runBatch(inPath: string, opts: Record<string, unknown>): Promise<void> {
@@ -229,7 +250,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(input.chunks, output, workers, (rows) => {
+    counts = await streamRows(inPath, input.chunks, output, workers, (rows) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
     });
     if (!counts.header) {
@@ -253,7 +274,7 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
   }
   if (showProgress) process.stderr.write('\r');
   if (showProgress || counts.failed > 0 || outPath) {
-    info(`${counts.rows} row(s), ${counts.failed} with an error (see the error column); methods ${METHODS_VERSION}${outPath ? `; wrote ${opts.out}` : ''}`);
+    info(`${counts.read} record(s) read, ${counts.written} written, ${counts.failed} with an error (see the error column); methods ${METHODS_VERSION}${outPath ? `; wrote ${opts.out}` : ''}`);
   }
 }
 

@@ -9,10 +9,12 @@
  */
 import { parentPort } from 'node:worker_threads';
 import { BatchSheet, planBatch } from '../records/batch-row.js';
+import type { Dialect } from '../records/csv-records.js';
 
-/** The input's header, sent once before the first piece. */
+/** The input's header and dialect, sent once before the first piece. */
 export interface HeaderMessage {
   header: string[];
+  dialect: Dialect;
 }
 
 /** A piece to compute: its place in the file and its text. */
@@ -34,7 +36,7 @@ if (port) {
   let sheet: BatchSheet | undefined;
   port.on('message', (m: HeaderMessage | PieceRequest) => {
     if ('header' in m) {
-      sheet = new BatchSheet(planBatch(m.header));
+      sheet = new BatchSheet(planBatch(m.header, m.dialect));
       return;
     }
     if (!sheet) throw new Error('batch worker: a piece came before the header');

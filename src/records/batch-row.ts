@@ -8,51 +8,138 @@
  * Columns are recognised by name, ignoring case and punctuation, so `lvot-vti`,
  * `lvotVti` and `LVOT_VTI` are one column. Everything else passes through.
  */
-import { csvParseRows } from 'd3-dsv';
+import { dsvFormat } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
-import { computeResults } from '../assessment/graph/index.js';
-import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS } from '../assessment/fields.js';
+import { RESULT_KEYS, computeResults, type Results } from '../assessment/graph/index.js';
+import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
-import type { Results } from '../assessment/graph/index.js';
 import type { Flag } from '../assessment/result.js';
-import { InputError, showValue } from '../errors.js';
-import { CsvBytes, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
+import type { VisitInputs } from '../assessment/inputs.js';
+import { InputError, describeProblem, showValue } from '../errors.js';
+import { CsvBytes, csvNumber, decimalsOf, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
+import { KINDS, bareNumber, toInternalUnit } from '../units/quantity.js';
+import type { BadRecord, Dialect } from './csv-records.js';
 
 type ColumnKind =
   | { kind: 'number'; key: string; multiple: boolean; field: number }
-  | { kind: 'choice'; key: string; allowed: readonly string[]; flag: string }
-  | { kind: 'boolean'; key: string; flag: string };
+  | { kind: 'choice'; key: string; codes: ReadonlyMap<string, string>; accepted: string; flag: string };
 
 function normalise(name: string): string {
   return name.toLowerCase().replace(/[^a-z0-9]/g, '');
 }
 
-const RECOGNISED: ReadonlyMap<string, ColumnKind> = new Map<string, ColumnKind>([
-  ...NUMERIC_FIELDS.map((f, field): [string, ColumnKind] => [normalise(f.key), { kind: 'number', key: f.key, multiple: f.multiple === true, field }]),
-  ...VALVE_FLAGS.map((v): [string, ColumnKind] => [normalise(v.key), { kind: 'boolean', key: v.key, flag: v.flag }]),
-  ['rhythm', { kind: 'choice', key: 'rhythm', allowed: RHYTHMS, flag: 'rhythm' }],
-  ['pesmethod', { kind: 'choice', key: 'pesMethod', allowed: PES_METHODS, flag: 'pes-method' }],
-  ['mapmethod', { kind: 'choice', key: 'mapMethod', allowed: MAP_METHODS, flag: 'map-method' }],
-  ['bsamethod', { kind: 'choice', key: 'bsaMethod', allowed: BSA_METHODS, flag: 'bsa-method' }],
-  ['sex', { kind: 'choice', key: 'sex', allowed: SEXES, flag: 'sex' }],
+/** A coded cell as looked up: lower case, without spaces, hyphens, underscores or dots. */
+function codeOf(cell: string): string {
+  return cell.toLowerCase().replace(/[\s\-_.]/g, '');
+}
+
+/** Codings of the choice columns (docs/batch.md): every spelling → the value the flag takes. */
+function coding(values: readonly string[], aliases: Record<string, string> = {}): ReadonlyMap<string, string> {
+  const codes = new Map<string, string>();
+  for (const v of values) codes.set(codeOf(v), v);
+  for (const [alias, v] of Object.entries(aliases)) codes.set(codeOf(alias), v);
+  return codes;
+}
+
+const RHYTHM_CODES = coding(RHYTHMS, { sr: 'sinus', nsr: 'sinus', 'sinus rhythm': 'sinus', af: 'atrial-fibrillation', afib: 'atrial-fibrillation' });
+const SEX_CODES = coding(SEXES, { f: 'female', m: 'male' });
+/** Yes/no findings; an empty cell (or a missing-value mark) is no. */
+const FINDING_CODES = new Map<string, string>([
+  ...['1', 'yes', 'y', 'true', 'present'].map((w): [string, string] => [w, 'yes']),
+  ...['0', 'no', 'n', 'false', 'absent'].map((w): [string, string] => [w, 'no']),
 ]);
 
-const TRUE_WORDS = new Set(['1', 'true', 'yes', 'y']);
-const FALSE_WORDS = new Set(['0', 'false', 'no', 'n']);
+const choice = (key: string, codes: ReadonlyMap<string, string>, accepted: string, flag: string): ColumnKind => ({ kind: 'choice', key, codes, accepted, flag });
+
+const RECOGNISED: ReadonlyMap<string, ColumnKind> = new Map<string, ColumnKind>([
+  ...NUMERIC_FIELDS.map((f, field): [string, ColumnKind] => [normalise(f.key), { kind: 'number', key: f.key, multiple: f.multiple === true, field }]),
+  ...VALVE_FLAGS.map((v): [string, ColumnKind] => [normalise(v.key), choice(v.key, FINDING_CODES, '1/0, yes/no, y/n, true/false or present/absent (empty = no)', v.flag)]),
+  ['rhythm', choice('rhythm', RHYTHM_CODES, 'sinus (or SR, NSR), atrial fibrillation (or AF, AFib), other', 'rhythm')],
+  ['pesmethod', choice('pesMethod', coding(PES_METHODS), PES_METHODS.join(', '), 'pes-method')],
+  ['mapmethod', choice('mapMethod', coding(MAP_METHODS), MAP_METHODS.join(', '), 'map-method')],
+  ['bsamethod', choice('bsaMethod', coding(BSA_METHODS), BSA_METHODS.join(', '), 'bsa-method')],
+  ['sex', choice('sex', SEX_CODES, 'F, M, female or male (any case)', 'sex')],
+]);
+
+/**
+ * A missing value as spreadsheets and statistics packages write it: an empty
+ * cell, NA, N/A (any case), "." (SPSS, SAS) or "-".
+ */
+export function isMissingMark(cell: string): boolean {
+  switch (cell.length) {
+    case 0:
+      return true;
+    case 1:
+      return cell === '.' || cell === '-';
+    case 2:
+      return (cell.charCodeAt(0) | 32) === 110 && (cell.charCodeAt(1) | 32) === 97; // NA in any case
+    case 3:
+      return cell.toLowerCase() === 'n/a';
+    default:
+      return false;
+  }
+}
+
+/**
+ * A header as written: the name, and a unit in round or square brackets at
+ * its end (`SBP (mmHg)`, `EDV [mL]`), split off when the rest names an input.
+ */
+function headerName(raw: string): { column: ColumnKind | undefined; unit: string } {
+  const whole = RECOGNISED.get(normalise(raw));
+  if (whole) return { column: whole, unit: '' };
+  const m = /^(.*?)\s*[([]\s*([^()[\]]*?)\s*[)\]]\s*$/.exec(raw);
+  const column = m ? RECOGNISED.get(normalise(m[1]!)) : undefined;
+  return column ? { column, unit: m![2]! } : { column: undefined, unit: '' };
+}
+
+/** Spellings of each default unit taken as no unit at all. */
+const DEFAULT_UNIT_WORDS: Record<string, readonly string[]> = { years: ['years', 'year', 'yrs', 'yr', 'y'], bpm: ['bpm', '/min', 'min-1', 'beats/min'], mmHg: ['mmhg', 'mm hg'] };
+
+/**
+ * The unit a header gives a numeric column: '' for the field's own unit,
+ * else the unit, checked once here (mathjs loads only for such a unit).
+ */
+function headerUnit(unit: string, index: number, header: string, field: number): string {
+  const f = NUMERIC_FIELDS[field]!;
+  const lower = unit.trim().toLowerCase();
+  if (lower === '' || lower === f.unit.toLowerCase() || (DEFAULT_UNIT_WORDS[f.unit] ?? []).includes(lower)) return '';
+  const accepted = `a unit of the input's kind in brackets: ${KINDS[f.kind].examples}`;
+  if (f.kind !== 'ratio') {
+    try {
+      toInternalUnit(f.flag, `1 ${unit}`, f.kind);
+      return unit.trim();
+    } catch (err) {
+      if (!(err instanceof InputError)) throw err;
+    }
+  }
+  throw new InputError({ field: `column ${index + 1}`, value: showValue(header), reason: `the unit ${showValue(unit)} is not one for ${f.label}`, accepted: f.kind === 'ratio' ? `${f.unit || 'no unit'} for this input` : accepted });
+}
 
 export interface BatchLayout {
   /** The input header as read. */
   header: string[];
-  /** Input column positions that feed the computation. */
-  recognised: { index: number; column: ColumnKind }[];
-  /** The output header: input columns, result columns, flags, notComputable, methodsVersion, error. */
+  /** The separator and decimal mark (records/csv-records.ts detectDialect). */
+  dialect: Dialect;
+  /** Input column positions that feed the computation, and the unit a header gives a numeric column ('' for its own). */
+  recognised: { index: number; column: ColumnKind; unit: string }[];
+  /** Numeric inputs as used (registry positions), one output column each after the input columns; `decimals` as csvNumber writes the unit. */
+  used: { field: number; key: NumericKey; unit: string; decimals: number }[];
+  /** The output header: input columns, inputs as used, result columns, flags, notComputable, methodsVersion, error. */
   outputHeader: string[];
 }
 
+/** The comma-separated dialect of RFC 4180. */
+export const COMMA: Dialect = { separator: ',', decimalComma: false };
+
+/** The output column of a numeric input as used: its key with the suffix `Used` (as the results that report a value used are named). */
+function usedName(key: string): string {
+  return `${key}Used`;
+}
+
 /** Plan the output from the input header. Refuses empty or repeated column names. */
-export function planBatch(header: readonly string[]): BatchLayout {
+export function planBatch(header: readonly string[], dialect: Dialect = COMMA): BatchLayout {
   const seen = new Map<string, number>();
   const recognised: BatchLayout['recognised'] = [];
   const recognisedKeys = new Map<string, string>();
@@ -66,66 +153,106 @@ export function planBatch(header: readonly string[]): BatchLayout {
       throw new InputError({ field: `column ${index + 1}`, value: showValue(name), reason: `same name as column ${seen.get(lower)! + 1}`, accepted: 'distinct column names' });
     }
     seen.set(lower, index);
-    const column = RECOGNISED.get(normalise(name));
+    const { column, unit } = headerName(name);
     if (column) {
       const earlier = recognisedKeys.get(column.key);
       if (earlier !== undefined) {
-        throw new InputError({ field: `column ${index + 1}`, value: showValue(name), reason: `names the same input as column "${earlier}"`, accepted: 'each input in one column' });
+        throw new InputError({ field: `column ${index + 1}`, value: showValue(name), reason: `names the same input as column ${showValue(earlier)}`, accepted: 'each input in one column' });
       }
       recognisedKeys.set(column.key, name);
-      recognised.push({ index, column });
+      recognised.push({ index, column, unit: column.kind === 'number' ? headerUnit(unit, index, name, column.field) : '' });
     }
   });
   if (!recognised.some((r) => r.column.key === 'sbp')) {
     const required = NUMERIC_FIELDS.filter((f) => f.required).map((f) => f.flag).join(', ');
-    throw new InputError({ field: 'header', value: showValue(header.join(',')), reason: 'no measurement columns recognised', accepted: `columns named like the flags: ${required}, and optionally hr, ef, sv, height, weight, … (docs/batch.md)` });
+    throw new InputError({ field: 'header', value: showValue(header.join(dialect.separator)), reason: 'no measurement columns recognised', accepted: `columns named like the flags: ${required}, and optionally hr, ef, sv, height, weight, … (docs/batch.md)` });
   }
   const taken = new Set(seen.keys());
+  const resultNames = new Set<string>(RESULT_KEYS);
+  const used = recognised
+    .flatMap((r) => (r.column.kind === 'number' ? [r.column.field] : []))
+    .sort((x, y) => x - y)
+    .map((field) => ({ field, key: NUMERIC_FIELDS[field]!.key, unit: NUMERIC_FIELDS[field]!.unit, decimals: decimalsOf(NUMERIC_FIELDS[field]!.unit) }))
+    // A result that reports the value used for an input (svUsed, efUsed) is that input's column as used already.
+    .filter((u) => !resultNames.has(usedName(u.key)));
+  const usedNames = used.map((u) => usedName(u.key));
+  // No result column has the name of an input (a value used ends in Used), so none is renamed.
   const trailing = [...resultColumns(), ...trailingColumns()];
-  const clash = trailing.find((c) => taken.has(c.name.toLowerCase()));
+  const clash = [...usedNames, ...trailing.map((c) => c.name)].find((name) => taken.has(name.toLowerCase()));
   if (clash) {
-    throw new InputError({ field: `column "${clash.name}"`, value: showValue(clash.name), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash.name} (rename or drop it)` });
+    throw new InputError({ field: `column ${showValue(clash)}`, value: showValue(clash), reason: 'the output needs this name for a result column', accepted: `an input without a column named ${clash} (rename or drop it)` });
   }
   return {
     header: [...header],
+    dialect,
     recognised,
-    outputHeader: [...header, ...trailing.map((c) => c.name)],
+    used,
+    outputHeader: [...header, ...usedNames, ...trailing.map((c) => c.name)],
   };
 }
 
+/** A number typed with a decimal comma (`120,5`, `-0,25 L`) with a decimal point instead; other text as it is. */
+function decimalPoint(text: string): string {
+  const comma = text.indexOf(',');
+  if (comma === -1 || text.indexOf(',', comma + 1) !== -1 || text.includes('.')) return text;
+  return /^[+-]?\d*,\d/.test(text) ? `${text.slice(0, comma)}.${text.slice(comma + 1)}` : text;
+}
+
+/** Plain numbers (with a decimal comma where the file uses one) separated by spaces: several readings. */
+function spacedReadings(cell: string, decimalComma: boolean): string[] | undefined {
+  if (cell.indexOf(' ') === -1 && cell.indexOf('\t') === -1) return undefined;
+  const parts = cell.split(/\s+/);
+  return parts.every((p) => {
+    const n = bareNumber(decimalComma ? decimalPoint(p) : p);
+    return n === n;
+  })
+    ? parts
+    : undefined;
+}
+
 /**
- * Read one row's cells; empty cells are absent. The numeric inputs go into
- * `numbers` by registry position (NUMERIC_FIELDS order: the text as entered,
- * or a list of readings), every other input into the raw inputs returned.
- * With `checkShape`, a cell of no readings (";") or too many is refused as
- * parseInputs's shape check refuses it, since parseFieldValues skips that
- * check; every other cell gives a raw value of the right shape.
+ * One numeric cell as the unit layer takes it: a decimal comma read as a
+ * point (semicolon files), a header's unit added to a bare number, and each
+ * changed text noted beside the text as typed (`typed`), so that a message
+ * quotes what the spreadsheet holds.
  */
-function readCells(layout: BatchLayout, cells: readonly string[], numbers: unknown[], checkShape: boolean): RawInputs {
+function numericText(text: string, unit: string, decimalComma: boolean, typed: Map<string, string> | undefined): string {
+  let t = decimalComma ? decimalPoint(text) : text;
+  if (unit !== '' && bareNumber(t) === bareNumber(t)) t = `${t} ${unit}`;
+  if (t !== text) typed?.set(showValue(t), showValue(text));
+  return t;
+}
+
+/**
+ * Read one row's cells; empty cells and missing-value marks are absent. The
+ * numeric inputs go into `numbers` by registry position (NUMERIC_FIELDS
+ * order: the text as entered, or a list of readings), every other input into
+ * the raw inputs returned. With `checkShape`, a cell of no readings (";") or
+ * too many is refused as parseInputs's shape check refuses it, since
+ * parseFieldValues skips that check; every other cell gives a raw value of
+ * the right shape. Several readings of one input are separated by `;` (not in
+ * semicolon files), `|`, or spaces between plain numbers.
+ */
+function readCells(layout: BatchLayout, cells: readonly string[], numbers: unknown[], checkShape: boolean, typed?: Map<string, string>): RawInputs {
   const raw: Record<string, unknown> = {};
+  const decimalComma = layout.dialect.decimalComma;
   let badLists: number[] | undefined;
-  for (const { index, column } of layout.recognised) {
+  for (const { index, column, unit } of layout.recognised) {
     const cell = (cells[index] ?? '').trim();
-    if (cell === '') continue;
+    if (isMissingMark(cell)) continue;
     switch (column.kind) {
-      case 'number':
-        if (column.multiple && cell.includes(';')) {
-          const readings = cell.split(';').map((s) => s.trim()).filter((s) => s !== '');
-          if (checkShape && (readings.length === 0 || readings.length > MAX_READINGS)) (badLists ??= []).push(column.field);
-          numbers[column.field] = readings;
-        } else numbers[column.field] = cell;
-        break;
-      case 'choice': {
-        const value = cell.toLowerCase();
-        if (!column.allowed.includes(value)) throw new InputError({ field: column.flag, value: showValue(cell), accepted: column.allowed.join(', ') });
-        raw[column.key] = value;
+      case 'number': {
+        const list = !column.multiple ? undefined : cell.includes(';') || cell.includes('|') ? cell.split(/[;|]/).map((s) => s.trim()).filter((s) => s !== '') : spacedReadings(cell, decimalComma);
+        if (list) {
+          if (checkShape && (list.length === 0 || list.length > MAX_READINGS)) (badLists ??= []).push(column.field);
+          numbers[column.field] = decimalComma || unit !== '' ? list.map((r) => numericText(r, unit, decimalComma, typed)) : list;
+        } else numbers[column.field] = decimalComma || unit !== '' ? numericText(cell, unit, decimalComma, typed) : cell;
         break;
       }
-      case 'boolean': {
-        const value = cell.toLowerCase();
-        if (TRUE_WORDS.has(value)) raw[column.key] = true;
-        else if (FALSE_WORDS.has(value)) raw[column.key] = false;
-        else throw new InputError({ field: column.flag, value: showValue(cell), accepted: '1/0, yes/no or true/false (empty = no)' });
+      case 'choice': {
+        const value = column.codes.get(codeOf(cell));
+        if (value === undefined) throw new InputError({ field: column.flag, value: showValue(cell), accepted: column.accepted });
+        raw[column.key] = column.codes === FINDING_CODES ? value === 'yes' : value;
         break;
       }
     }
@@ -147,13 +274,18 @@ export function rawFromCells(layout: BatchLayout, cells: readonly string[]): Raw
   return raw as RawInputs;
 }
 
-/** How many result and trailing cells follow the input cells. */
+/** How many result and trailing cells follow the input cells (the inputs as used among them). */
 function trailingCount(layout: BatchLayout): number {
   return layout.outputHeader.length - layout.header.length;
 }
 
-/** What one row gives: its results and flags, or why it could not be computed. */
-type RowOutcome = { results: Results; flags: Flag[]; error?: undefined } | { error: string };
+/** What one row gives: its inputs as used, results and flags, or why it could not be computed. */
+type RowOutcome = { inputs: VisitInputs; results: Results; flags: Flag[]; error?: undefined } | { error: string };
+
+/** A message naming the text as typed where the unit layer saw it changed (a decimal comma read as a point). */
+function asTyped(err: InputError, typed: Map<string, string>): string {
+  return err.problems.map((p) => describeProblem({ ...p, value: typed.get(p.value) ?? p.value })).join('; ');
+}
 
 /**
  * The computation of one row, exactly as `assess` does it: the raw inputs
@@ -164,35 +296,56 @@ type RowOutcome = { results: Results; flags: Flag[]; error?: undefined } | { err
 function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
   const width = layout.header.length;
   if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
-    return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).join(', ')}` };
+    return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).map(showValue).join(', ')}` };
   }
+  const typed = layout.dialect.decimalComma ? new Map<string, string>() : undefined;
   try {
     // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position.
     const numbers = new Array<unknown>(NUMERIC_FIELDS.length);
-    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true));
+    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed));
     const results = computeResults(inputs);
-    return { results, flags: checkVisit(inputs, results, false) }; // only the codes are written
+    return { inputs, results, flags: checkVisit(inputs, results, false) }; // only the codes are written
   } catch (err) {
-    if (err instanceof InputError) return { error: err.message.split('\n').join('; ') };
+    if (err instanceof InputError) return { error: typed?.size ? asTyped(err, typed) : err.message.split('\n').join('; ') };
     throw err;
   }
 }
 
+/** The reason written for a record whose quotes do not pair up (records/csv-records.ts). */
+export function badRecordError(bad: BadRecord, header: readonly string[]): string {
+  const name = header[bad.column - 1];
+  return describeProblem({
+    field: `line ${bad.line}, column ${bad.column}${name !== undefined ? ` (${showValue(name.trim())})` : ''}`,
+    value: showValue(bad.text),
+    reason: `a double quote opens this cell and ${bad.reason}, so the line was read as plain text and not computed; reading went on with the next line`,
+    accepted: 'a quoted cell closed on the same line, or spanning lines in a record with as many cells as the header; a quote inside a quoted cell doubled ("")',
+  });
+}
+
 /**
  * The output cells of one row: the input cells as read (padded or cut to the
- * header), then results, flags, reasons, methods version and error. Never
- * throws for bad input: the reason goes to the error column.
+ * header), the inputs as used, then results, flags, reasons, methods version
+ * and error. Never throws for bad input: the reason goes to the error column.
  */
 export function batchRow(layout: BatchLayout, cells: readonly string[]): string[] {
+  return outputCells(layout, cells, computeRow(layout, cells));
+}
+
+/** batchRow of a record whose quotes do not pair up. */
+export function badRecordRow(layout: BatchLayout, bad: BadRecord): string[] {
+  return outputCells(layout, bad.cells, { error: badRecordError(bad, layout.header) });
+}
+
+function outputCells(layout: BatchLayout, cells: readonly string[], row: RowOutcome): string[] {
   const width = layout.header.length;
   const out: string[] = [];
   for (let i = 0; i < width; i++) out.push(cells[i] ?? '');
-  const row = computeRow(layout, cells);
   if (row.error !== undefined) {
     for (let i = trailingCount(layout) - 2; i > 0; i--) out.push('');
     out.push(METHODS_VERSION, row.error);
     return out;
   }
+  for (const u of layout.used) out.push(csvNumber(row.inputs[u.key], u.unit));
   for (const cell of resultCells(row.results)) out.push(cell);
   out.push(flagCell(row.flags), notComputableCell(row.results), METHODS_VERSION, '');
   return out;
@@ -212,6 +365,9 @@ function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], 
     out.comma();
     out.text(row.error);
   } else {
+    const inputs = row.inputs;
+    const used = layout.used;
+    for (let i = 0; i < used.length; i++) out.commaNumber(inputs[used[i]!.key], used[i]!.decimals);
     out.resultCells(row.results);
     out.comma();
     out.text(flagCell(row.flags));
@@ -225,29 +381,45 @@ function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], 
 }
 
 /**
- * One `elastimate batch` run, fed pieces of CSV text that end on a record
- * boundary (RecordPieces). The first non-empty record is the header
- * (planBatch), unless a layout is given (a worker thread gets the header
- * from the main thread); every later non-empty record is one output line.
- * Records are computed as d3-dsv parses them and written as bytes, so a
- * piece keeps neither its rows nor their text.
+ * One `elastimate batch` run, fed pieces of text that end on a record
+ * boundary and whose quotes pair up (records/csv-records.ts RecordSplitter),
+ * in the dialect the splitter detected. The first non-empty record is the
+ * header (planBatch), unless a layout is given (a worker thread gets the
+ * header from the main thread); every later non-empty record is one output
+ * line. Records are computed as d3-dsv parses them and written as bytes, so
+ * a piece keeps neither its rows nor their text. `rows` counts the records
+ * read (each gives one output row), `failed` those with an error.
  */
 export class BatchSheet {
   layout: BatchLayout | undefined;
   rows = 0;
   failed = 0;
   private readonly out = new CsvBytes();
+  private readonly dialect: Dialect;
+  private readonly parser: ReturnType<typeof dsvFormat>;
 
-  constructor(layout?: BatchLayout) {
+  constructor(layout?: BatchLayout, dialect: Dialect = layout?.dialect ?? COMMA) {
     this.layout = layout;
+    this.dialect = dialect;
+    this.parser = dsvFormat(dialect.separator);
   }
 
   /** The output (UTF-8 CSV, CRLF line ends) of the complete records in `text`; the header line comes first, once. */
   piece(text: string): Uint8Array {
-    csvParseRows(text, (cells) => {
+    this.parser.parseRows(text, (cells) => {
       this.record(cells);
       return null; // keep nothing
     });
+    return this.out.take();
+  }
+
+  /** The output of a record whose quotes do not pair up: its line's cells and the reason. */
+  bad(bad: BadRecord): Uint8Array {
+    const layout = this.layout;
+    if (!layout) throw new Error('batch: a record before the header');
+    this.rows++;
+    this.failed++;
+    writeRow(this.out, layout, bad.cells, { error: badRecordError(bad, layout.header) });
     return this.out.take();
   }
 
@@ -255,58 +427,14 @@ export class BatchSheet {
     if (cells.length === 1 && cells[0] === '') return; // an empty line
     const layout = this.layout;
     if (!layout) {
-      this.layout = planBatch(cells);
+      this.layout = planBatch(cells, this.dialect);
       this.out.cells(this.layout.outputHeader, this.layout.outputHeader.length);
       this.out.endRow();
       return;
     }
-    const row = computeRow(layout, cells);
     this.rows++;
+    const row = computeRow(layout, cells);
     if (row.error !== undefined) this.failed++;
     writeRow(this.out, layout, cells, row);
-  }
-}
-
-/**
- * Cuts streamed CSV text at record boundaries so each piece can be parsed on
- * its own: a line break ends a record only outside double quotes (RFC 4180:
- * quotes inside a quoted cell come doubled, so counting them tells inside
- * from outside). Memory holds one chunk and the unfinished record.
- */
-export class RecordPieces {
-  private pending = '';
-  private started = false;
-
-  /** Feed text; returns the complete records so far ('' if none). */
-  push(text: string): string {
-    let all = this.pending + text;
-    if (!this.started && all.length > 0) {
-      this.started = true;
-      if (all.charCodeAt(0) === 0xfeff) all = all.slice(1); // byte-order mark
-    }
-    let end = -1;
-    if (all.indexOf('"') === -1) {
-      end = all.lastIndexOf('\n'); // no quotes: every line break ends a record
-    } else {
-      let inQuotes = false;
-      for (let i = 0; i < all.length; i++) {
-        const c = all.charCodeAt(i);
-        if (c === 34) inQuotes = !inQuotes;
-        else if (c === 10 && !inQuotes) end = i;
-      }
-    }
-    if (end === -1) {
-      this.pending = all;
-      return '';
-    }
-    this.pending = all.slice(end + 1);
-    return all.slice(0, end + 1);
-  }
-
-  /** The rest at the end of the input (a last record without a line break). */
-  end(): string {
-    const rest = this.pending;
-    this.pending = '';
-    return rest;
   }
 }

@@ -16,18 +16,45 @@ import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fiel
 import type { VisitInputs } from '../assessment/inputs.js';
 import type { Flag, Quantity } from '../assessment/result.js';
 import { sanitizeText } from '../text/sanitize.js';
+import { bareNumber } from '../units/quantity.js';
 import { decimalsFor, formatNumber } from './format.js';
 
 /** RFC 4180 line end. */
 export const CRLF = '\r\n';
 
 /**
- * Rows as RFC 4180 text: d3-dsv quotes a cell that holds a comma, a double
- * quote or a line break (doubling the quotes); each row ends with CRLF.
+ * Whether a text cell would be taken for a formula by a spreadsheet: it
+ * begins with `=`, `+`, `-`, `@`, a tab or a carriage return (OWASP, "CSV
+ * Injection") and is not a plain number (`-2.5` and `+3` are numbers, never
+ * formulas, and stay numbers).
+ */
+function looksLikeFormula(cell: string): boolean {
+  return FORMULA_START[cell.charCodeAt(0)] === 1 && bareNumber(cell) !== bareNumber(cell); // NaN: not a plain number
+}
+
+/** The first characters of a formula: = + - @ tab CR (1), by character code. */
+const FORMULA_START = new Uint8Array(128);
+for (const c of '=+-@\t\r') FORMULA_START[c.charCodeAt(0)] = 1;
+
+/**
+ * The one CSV cell guard, for every CSV the tool writes (export and batch):
+ * a text cell a spreadsheet would run as a formula gets a leading single
+ * quote, as the OWASP CSV-injection guidance recommends; any other cell,
+ * numbers included, is returned as it is. Composes with the text sanitiser:
+ * sanitise first, then guard.
+ */
+export function guardCell(cell: string): string {
+  return looksLikeFormula(cell) ? `'${cell}` : cell;
+}
+
+/**
+ * Rows as RFC 4180 text: every cell through guardCell, then quoted by d3-dsv
+ * when it holds a comma, a double quote or a line break (doubling the
+ * quotes); each row ends with CRLF.
  */
 export function csvText(rows: readonly (readonly string[])[]): string {
   let text = '';
-  for (const row of rows) text += csvFormatRow(row.map(csvCellText)) + CRLF;
+  for (const row of rows) text += csvFormatRow(row.map(safeCell)) + CRLF;
   return text;
 }
 
@@ -40,11 +67,16 @@ export function csvCellText(cell: string): string {
   return sanitizeText(cell, { keepWhitespace: true });
 }
 
+/** A text cell as every CSV of the tool writes it: the sanitiser first, then the cell guard. */
+export function safeCell(cell: string): string {
+  return guardCell(csvCellText(cell));
+}
+
 const SCALE = [1, 10, 100, 1000, 1e4, 1e5, 1e6, 1e7, 1e8];
 
-/** Decimals per unit, looked up once per unit rather than once per cell. */
+/** Decimals of a CSV number per unit (csvNumber), looked up once per unit rather than once per cell. */
 const csvDecimals = new Map<string, number>();
-function decimalsOf(unit: string): number {
+export function decimalsOf(unit: string): number {
   let d = csvDecimals.get(unit);
   if (d === undefined) {
     d = Math.min(decimalsFor(unit) + 2, SCALE.length - 1);
@@ -122,9 +154,10 @@ export class CsvBytes {
   }
 
   /**
-   * A text cell. Printable ASCII without a comma or a double quote (nearly
-   * every cell) is copied as it is, which is what d3-dsv's csvFormatValue
-   * returns for it; any other cell goes through csvCellText, is quoted by
+   * A text cell. Printable ASCII without a comma or a double quote that
+   * does not begin like a formula (nearly every cell) is copied as it is,
+   * which is what d3-dsv's csvFormatValue returns for it; any other cell goes
+   * through safeCell (sanitiser, then cell guard), is quoted by
    * csvFormatValue where needed and encoded as UTF-8 by Node.
    */
   text(cell: string): void {
@@ -132,18 +165,20 @@ export class CsvBytes {
     this.room(n);
     const buf = this.buf;
     const start = this.pos;
+    let plain = FORMULA_START[cell.charCodeAt(0)] !== 1;
     let p = start;
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; plain && i < n; i++) {
       const c = cell.charCodeAt(i);
-      if (c >= 0x7f || c < 0x20 || c === 34 || c === 44) {
-        const t = csvFormatValue(csvCellText(cell));
-        this.room(t.length * 3);
-        this.pos = start + this.buf.write(t, start, 'utf8');
-        return;
-      }
-      buf[p++] = c;
+      if (c >= 0x7f || c < 0x20 || c === 34 || c === 44) plain = false;
+      else buf[p++] = c;
     }
-    this.pos = p;
+    if (plain) {
+      this.pos = p;
+      return;
+    }
+    const t = csvFormatValue(safeCell(cell));
+    this.room(t.length * 3);
+    this.pos = start + this.buf.write(t, start, 'utf8');
   }
 
   /** The first `width` cells (missing ones empty), as text cells separated by commas. */
@@ -173,6 +208,13 @@ export class CsvBytes {
   /** csvNumber(value, unit), written as bytes. */
   number(value: number | null | undefined, unit: string): void {
     this.numberWith(value, decimalsOf(unit));
+  }
+
+  /** A comma, then csvNumber(value, unit) for a unit whose decimals (csvDecimals) were looked up once. */
+  commaNumber(value: number | null | undefined, decimals: number): void {
+    this.room(1);
+    this.buf[this.pos++] = 44;
+    this.numberWith(value, decimals);
   }
 
   private numberWith(value: number | null | undefined, decimals: number): void {

@@ -44,7 +44,9 @@ describe('batch', () => {
   it('keeps the input columns and adds one column per result key named as the JSON keys, then flags, reasons, methods version and error', () => {
     const header = parse(run.stdout, { to_line: 1 })[0] as string[];
     // The input has an `ef` column (EF as reported); the EF used is the result `efUsed`, so no name is shared.
-    expect(header).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
+    // Then the numeric inputs as used (suffix Used, in the order of docs/batch.md's table), less those a result already reports.
+    const used = ['sbpUsed', 'dbpUsed', 'hrUsed', 'edvUsed', 'esvUsed', 'efUsed', 'pepUsed', 'etUsed'].filter((u) => !RESULT_KEYS.includes(u as never));
+    expect(header).toEqual([...HEADER, ...used, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
     expect(rows.map((r) => r.participant)).toEqual(['HT-101', 'HT-102', 'HT-103', 'HT-104']);
     expect(rows[0]!.comment).toBe('baseline, fasting');
     expect(rows[2]!.comment).toBe('says "units"\nover two lines');
@@ -65,7 +67,7 @@ describe('batch', () => {
     expect(rows[1]!.error).toBe('dbp: got 130; not below SBP 120 mmHg; accepted: DBP lower than SBP');
     expect(rows[1]!.ea).toBe('');
     expect(rows[2]!.error).toBe('');
-    expect(run.stderr).toMatch(/4 row\(s\), 1 with an error/);
+    expect(run.stderr).toMatch(/4 record\(s\) read, 4 written, 1 with an error/);
   });
 
   it('converts values with units and averages several readings', () => {

@@ -89,7 +89,7 @@ describe('batch on a file shared with worker threads', () => {
     const run = await runCli(['batch', input, '--out', out], { timeoutMs: 60_000 });
     expect(run.stderr).not.toMatch(STACK_FRAME);
     expect(run.code, run.stderr).toBe(0);
-    expect(run.stderr).toMatch(new RegExp(`${ROWS} row\\(s\\), \\d+ with an error`));
+    expect(run.stderr).toMatch(new RegExp(`${ROWS} record\\(s\\) read, ${ROWS} written, \\d+ with an error`));
     checkOutput(out);
   });
 

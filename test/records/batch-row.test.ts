@@ -5,8 +5,9 @@ import { assess } from '../../src/assessment/assess.js';
 import { RESULT_KEYS, RESULT_UNITS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
-import { RecordPieces, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
-import { csvNumber, csvText } from '../../src/render/csv.js';
+import { batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
+import { RecordSplitter } from '../../src/records/csv-records.js';
+import { CsvBytes, csvNumber, csvText, safeCell } from '../../src/render/csv.js';
 
 const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
 
@@ -15,8 +16,10 @@ describe('batch rows', () => {
 
   it('recognises columns named like the flags, ignoring case and punctuation, and passes the rest through', () => {
     expect(layout.recognised.map((r) => r.column.key)).toEqual(['sbp', 'dbp', 'hr', 'edv', 'esv', 'pep', 'et', 'lvotDiameter', 'lvotVti', 'aorticStenosis', 'rhythm']);
-    // Output: the input columns, then one column per result key named as the JSON keys, then the trailing columns.
-    expect(layout.outputHeader).toEqual([...HEADER, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
+    // Output: the input columns, the numeric inputs as used (suffix Used, registry order), then one column per
+    // result key named as the JSON keys, then the trailing columns.
+    const used = ['sbpUsed', 'dbpUsed', 'hrUsed', 'edvUsed', 'esvUsed', 'lvotDiameterUsed', 'lvotVtiUsed', 'pepUsed', 'etUsed'];
+    expect(layout.outputHeader).toEqual([...HEADER, ...used, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
   });
 
   it('computes a row exactly as assess does', () => {
@@ -45,7 +48,7 @@ describe('batch rows', () => {
 
   it('lists every missing or bad field of a row together', () => {
     const out = batchRow(layout, ['P-3', '', 'abc', '', '60', '120', '50', '', '290', '', '', 'maybe', '', '']);
-    expect(out[out.length - 1]).toBe('aortic-stenosis: got "maybe"; accepted: 1/0, yes/no or true/false (empty = no)');
+    expect(out[out.length - 1]).toBe('aortic-stenosis: got "maybe"; accepted: 1/0, yes/no, y/n, true/false or present/absent (empty = no)');
     const out2 = batchRow(layout, ['P-3', '', 'abc', '', '60', '120', '50', '', '290', '', '', '', '', '']);
     expect(out2[out2.length - 1]).toMatch(/dbp: missing; required.*pep: missing; required.*sbp: got "abc"/);
   });
@@ -71,31 +74,38 @@ describe('batch rows', () => {
     expect(() => planBatch(['lvotVti', 'lvot-vti', 'sbp'])).toThrow(/names the same input as column "lvotVti"/);
     expect(() => planBatch(['name', 'value'])).toThrow(/no measurement columns recognised/);
     expect(() => planBatch(['sbp', 'sv', 'svUsed'])).toThrow(/column "svUsed".*needs this name/);
+    expect(() => planBatch(['sbp', 'dbp', 'sbpUsed'])).toThrow(/column "sbpUsed".*needs this name/);
   });
 });
 
 describe('cutting a CSV stream at record boundaries', () => {
   const text = 'id,note\r\n1,"a, ""quoted""\r\nnote"\r\n2,plain\r\n3,"ends with ""\r\n"\r\n';
 
+  /** The records of `text` fed in chunks of `size`, each good segment parsed by d3-dsv. */
+  function recordsOf(text: string, size: number): string[][] {
+    const splitter = new RecordSplitter();
+    const rows: string[][] = [];
+    const take = (segments: ReturnType<RecordSplitter['push']>) => {
+      for (const s of segments) rows.push(...(s.bad ? [['BAD', String(s.bad.line), ...s.bad.cells]] : csvParseRows(s.text)));
+    };
+    for (let i = 0; i < text.length; i += size) take(splitter.push(text.slice(i, i + size)));
+    take(splitter.end());
+    return rows;
+  }
+
   it('gives the same records as a general-purpose parser (csv-parse) wherever the chunks are cut', () => {
     const reference = parse(text, { relax_column_count: true }) as string[][];
-    for (let size = 1; size <= text.length; size++) {
-      const pieces = new RecordPieces();
-      const rows: string[][] = [];
-      for (let i = 0; i < text.length; i += size) {
-        const piece = pieces.push(text.slice(i, i + size));
-        if (piece) rows.push(...csvParseRows(piece));
-      }
-      const rest = pieces.end();
-      if (rest) rows.push(...csvParseRows(rest));
-      expect(rows).toEqual(reference);
-    }
+    for (let size = 1; size <= text.length; size++) expect(recordsOf(text, size)).toEqual(reference);
   });
 
   it('drops a byte-order mark and keeps a last record without a line break', () => {
-    const pieces = new RecordPieces();
-    expect(pieces.push('\ufeffsbp,dbp\n120,80')).toBe('sbp,dbp\n');
-    expect(pieces.end()).toBe('120,80');
+    expect(recordsOf('\ufeffsbp,dbp\n120,80', 3)).toEqual([['sbp', 'dbp'], ['120', '80']]);
+  });
+
+  it('reports a stray quote at the line where it opened and reads on from the next line, wherever the chunks are cut', () => {
+    const stray = 'id,sbp,note\n1,120,ok\n2,"stray,x\n3,130,"two\nlines"\n4,140,end\n';
+    const expected = [['id', 'sbp', 'note'], ['1', '120', 'ok'], ['BAD', '3', '2', '"stray', 'x'], ['3', '130', 'two\nlines'], ['4', '140', 'end']];
+    for (let size = 1; size <= stray.length; size++) expect(recordsOf(stray, size)).toEqual(expected);
   });
 });
 
@@ -120,8 +130,60 @@ describe('CSV cells', () => {
     expect(parse(text)).toEqual(rows);
   });
 
+  it('guards formula-like text after sanitising it, the same in csvText and in the byte writer (OWASP CSV injection)', () => {
+    const cells = ['=1+1', '-2.5', '+3', '@x', '\t=1', '-', '\u001b=1', '=1\u001b', 'plain', 'a, b', ''];
+    const expected = ["'=1+1", '-2.5', '+3', "'@x", "'\t=1", "'-", '\u241b=1', "'=1\u241b", 'plain', 'a, b', ''];
+    expect(cells.map(safeCell)).toEqual(expected);
+    const text = csvText([cells]);
+    expect(parse(text)).toEqual([expected]);
+    const out = new CsvBytes();
+    out.cells(cells, cells.length);
+    out.endRow();
+    expect(new TextDecoder().decode(out.take())).toBe(text);
+  });
+
   it('every result key has the unit its node declares (the graph is the one place units are decided)', () => {
     const a = assess(parseInputs({ sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, pep: 90, et: 290, height: 170, weight: 70 }));
     for (const key of RESULT_KEYS) expect(RESULT_UNITS[key], key).toBe(a.results[key].unit);
+  });
+});
+
+describe('the record splitter on any text (self-consistency: chunked against whole)', () => {
+  /** Every segment as records: good text parsed by d3-dsv, a bad record as its line, column and cells. */
+  function segmentsOf(text: string, cuts: number[]): unknown[] {
+    const splitter = new RecordSplitter();
+    const out: unknown[] = [];
+    const take = (segments: ReturnType<RecordSplitter['push']>) => {
+      for (const s of segments) out.push(...(s.bad ? [{ line: s.bad.line, column: s.bad.column, cells: s.bad.cells }] : csvParseRows(s.text)));
+    };
+    if (cuts.length === 0) take(splitter.push(text));
+    else for (let at = 0, k = 0; at < text.length; k++) {
+      const size = cuts[k % cuts.length]!;
+      take(splitter.push(text.slice(at, at + size)));
+      at += size;
+    }
+    take(splitter.end());
+    return out;
+  }
+
+  it('gives the same records and the same bad lines wherever the input is cut, bad lines in order and inside the text', async () => {
+    const fc = (await import('fast-check')).default;
+    const piece = fc.constantFrom('a', 'b1', ',', ',', '"', '""', '\n', '\r\n', '\r', ' ', 'é');
+    fc.assert(
+      fc.property(fc.array(piece, { maxLength: 60 }), fc.array(fc.integer({ min: 1, max: 7 }), { minLength: 1, maxLength: 4 }), (parts, cuts) => {
+        const text = `h1,h2,h3\n${parts.join('')}`;
+        const whole = segmentsOf(text, []);
+        expect(segmentsOf(text, cuts)).toEqual(whole);
+        // Every bad record's line exists in the text, and lines are reported in order.
+        const lines = text.split(/\r\n|\r|\n/).length;
+        const bad = whole.filter((r): r is { line: number } => !Array.isArray(r));
+        for (const [i, b] of bad.entries()) {
+          expect(b.line).toBeGreaterThan(1);
+          expect(b.line).toBeLessThanOrEqual(lines);
+          if (i > 0) expect(b.line).toBeGreaterThan(bad[i - 1]!.line);
+        }
+      }),
+      { numRuns: 2000 },
+    );
   });
 });
