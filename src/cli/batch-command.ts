@@ -1,7 +1,7 @@
 /**
  * `elastimate batch <in.csv> [--out out.csv]`: a cohort spreadsheet in, the
  * same rows with results out (docs/batch.md). Streams: the input is read in
- * 64 KiB chunks, cut at record boundaries (records/csv-records.ts RecordSplitter),
+ * 64 KiB chunks, cut at record boundaries (records/batch-row.ts RecordPieces),
  * and each piece (about a thousand rows) is parsed by d3-dsv and computed
  * row by row into output bytes (BatchSheet), which are written in input order,
  * waiting for the output to drain; reading waits while too many pieces are

@@ -10,11 +10,12 @@
  */
 import { dsvFormat } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
-import { RESULT_KEYS, computeResults, type Results } from '../assessment/graph/index.js';
+import { computeResults } from '../assessment/graph/index.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
+import { RESULT_KEYS, type Results } from '../assessment/graph/index.js';
 import type { Flag } from '../assessment/result.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
@@ -176,7 +177,6 @@ export function planBatch(header: readonly string[], dialect: Dialect = COMMA): 
     // A result that reports the value used for an input (svUsed, efUsed) is that input's column as used already.
     .filter((u) => !resultNames.has(usedName(u.key)));
   const usedNames = used.map((u) => usedName(u.key));
-  // No result column has the name of an input (a value used ends in Used), so none is renamed.
   const trailing = [...resultColumns(), ...trailingColumns()];
   const clash = [...usedNames, ...trailing.map((c) => c.name)].find((name) => taken.has(name.toLowerCase()));
   if (clash) {

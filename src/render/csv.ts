@@ -72,6 +72,7 @@ export function safeCell(cell: string): string {
   return guardCell(csvCellText(cell));
 }
 
+
 const SCALE = [1, 10, 100, 1000, 1e4, 1e5, 1e6, 1e7, 1e8];
 
 /** Decimals of a CSV number per unit (csvNumber), looked up once per unit rather than once per cell. */
@@ -293,6 +294,7 @@ export interface ColumnSpec {
 const INPUT_NUMERIC: readonly NumericKey[] = NUMERIC_FIELDS.map((f) => f.key);
 /** Method choices and sex, after rhythm and the valve findings. */
 const INPUT_CHOICES = ['pesMethod', 'mapMethod', 'bsaMethod', 'sex'] as const;
+
 
 export function inputColumns(): ColumnSpec[] {
   const cols: ColumnSpec[] = INPUT_NUMERIC.map((key) => {

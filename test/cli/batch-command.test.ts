@@ -44,7 +44,7 @@ describe('batch', () => {
   it('keeps the input columns and adds one column per result key named as the JSON keys, then flags, reasons, methods version and error', () => {
     const header = parse(run.stdout, { to_line: 1 })[0] as string[];
     // The input has an `ef` column (EF as reported); the EF used is the result `efUsed`, so no name is shared.
-    // Then the numeric inputs as used (suffix Used, in the order of docs/batch.md's table), less those a result already reports.
+    // Then the numeric inputs as used (suffix Used, in the order of docs/batch.md's table).
     const used = ['sbpUsed', 'dbpUsed', 'hrUsed', 'edvUsed', 'esvUsed', 'efUsed', 'pepUsed', 'etUsed'].filter((u) => !RESULT_KEYS.includes(u as never));
     expect(header).toEqual([...HEADER, ...used, ...RESULT_KEYS, 'flags', 'notComputable', 'methodsVersion', 'error']);
     expect(rows.map((r) => r.participant)).toEqual(['HT-101', 'HT-102', 'HT-103', 'HT-104']);
