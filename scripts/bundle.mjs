@@ -15,8 +15,9 @@ rmSync(join(root, 'dist', 'bundle'), { recursive: true, force: true });
 
 await build({
   // batch-worker.js is the worker thread of `batch`: a second entry point, so it lands beside
-  // main.js (dist/bundle/batch-worker.js) where the batch command looks for it.
-  entryPoints: [join(root, 'dist', 'cli', 'main.js'), join(root, 'dist', 'cli', 'batch-worker.js')],
+  // main.js (dist/bundle/batch-worker.js) where the batch command looks for it; model-worker.js
+  // likewise for `scenario --intervals` and `synthetic`.
+  entryPoints: [join(root, 'dist', 'cli', 'main.js'), join(root, 'dist', 'cli', 'batch-worker.js'), join(root, 'dist', 'cli', 'model-worker.js')],
   outdir: join(root, 'dist', 'bundle'),
   bundle: true,
   splitting: true,

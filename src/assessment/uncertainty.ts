@@ -27,7 +27,7 @@ import { InputError, showValue } from '../errors.js';
 import { COUPLING_CUTOFF } from '../physiology/coupling.js';
 import type { Assessment } from './assess.js';
 import { ERROR_INPUT_KEYS, errorModelFor, type ErrorInputKey, type ErrorModel, type InputErrorSpec } from './error-model.js';
-import { compileDraws } from './graph/draws.js';
+import { compileDraws, type DrawProgram } from './graph/draws.js';
 import { RESULT_KEYS, computeResults, defaultChoice, visitPlan, type MethodChoice, type Plan, type ResultKey, type Results } from './graph/index.js';
 import { SLOT_COUNT as GRAPH_SLOTS, evaluatePlan, inputVector, inputsOf, isInputSlot, keyOfSlot, slotOf } from './graph/plan.js';
 import type { VisitInputs } from './inputs.js';
@@ -178,13 +178,14 @@ interface Simulation {
 }
 
 /** A visit prepared for draws: its plan of the graph, the values at its inputs, and the inputs that carry an error. */
-interface RunPlan {
+export interface RunPlan {
   graph: Plan;
   nominal: Float64Array;
   active: { input: ErrorInputKey; stream: number; sd: number }[];
 }
 
-function runPlanFor(inputs: VisitInputs, choice: MethodChoice, model: ErrorModel): RunPlan {
+/** A visit prepared for draws under a method choice and an error model (by default the visit's own, with its overrides). */
+export function runPlanFor(inputs: VisitInputs, choice: MethodChoice = defaultChoice(inputs), model: ErrorModel = errorModelFor(inputs)): RunPlan {
   const graph = visitPlan(inputs, choice);
   const nominal = inputVector(inputs);
   evaluatePlan(graph, nominal, []);
@@ -205,6 +206,34 @@ function copyInto(target: Float32Array, source: Float64Array, start: number, n: 
 /** Fill a drawn input's column: its value plus SD times a standard normal deviate. */
 function drawInput(column: Float64Array, value: number, sd: number, z: Float64Array, n: number): void {
   for (let i = 0; i < n; i++) column[i] = value + sd * z[i]!;
+}
+
+/** The next n draws of every input with an error into its column: x₀ + SD·z, z the next deviates of the input's own stream. */
+function drawChunk(plan: RunPlan, columns: readonly Float64Array[], streams: readonly RandomGenerator[], z: readonly Float64Array[], n: number): void {
+  const { active, nominal } = plan;
+  for (let a = 0; a < active.length; a++) {
+    const { input, stream, sd } = active[a]!;
+    fillNormals(streams[stream]!, z[a]!, n);
+    drawInput(columns[a]!, nominal[slotOf(input)]!, sd, z[a]!, n);
+  }
+}
+
+/**
+ * Draws start … start + n − 1 of a visit's inputs into the input columns of a
+ * draw program compiled for `plan.active` (then `program.run(n)` computes the
+ * nodes): the very draws the main run of assessUncertainty makes with the
+ * same seed and error model, so draw d of any other use of a visit's error
+ * (the model's projections, src/model/scenario-intervals.ts) is draw d of
+ * `assess --uncertainty`. `start` is even: a stream read in even-sized pieces
+ * gives the sequence of one long read (fillNormals).
+ */
+export function drawVisitInputs(plan: RunPlan, program: DrawProgram, seed: number, start: number, n: number): void {
+  if (start % 2 !== 0) throw new Error('draws are taken from an even position of the streams');
+  const streams = randomStreams(seed, STREAM_COUNT);
+  const skip = new Float64Array(Math.max(start, n));
+  if (start > 0) for (const { stream } of plan.active) fillNormals(streams[stream]!, skip, start);
+  const columns = plan.active.map((a) => program.input(a.input));
+  drawChunk(plan, columns, streams, plan.active.map(() => new Float64Array(n)), n);
 }
 
 /**
@@ -234,11 +263,7 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
   const ratioColumn = program.output('eaEes');
   for (let start = 0; start < draws; start += CHUNK) {
     const n = Math.min(CHUNK, draws - start);
-    for (let a = 0; a < active.length; a++) {
-      const { input, stream, sd } = active[a]!;
-      fillNormals(streams[stream]!, z[a]!, n);
-      drawInput(columns[a]!, nominal[slotOf(input)]!, sd, z[a]!, n);
-    }
+    drawChunk(plan, columns, streams, z, n);
     program.run(n);
     program.countLosses('ees', n, sim.eesLosses);
     for (const { target, source } of stored) copyInto(target, source, start, n);

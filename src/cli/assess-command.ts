@@ -67,7 +67,8 @@ export async function completeRaw(raw: RawInputs, opts: Record<string, unknown>)
 }
 
 export async function runAssess(opts: Record<string, unknown>, inputFile: string | undefined): Promise<void> {
-  const diagrams = opts.svg !== undefined || opts.sketch === true ? await import('./diagram-options.js') : null;
+  const diagrams = opts.svg !== undefined || opts.sketch === true || opts.modelLoop === true ? await import('./diagram-options.js') : null;
+  diagrams?.checkModelLoopOption(opts);
   // Files this run reads (a visit file, SR files): an output may never be one of them.
   const inputPaths = [...(inputFile ? [inputFile] : []), ...(Array.isArray(opts.sr) ? opts.sr.map(String) : [])];
   const svgPath = diagrams && opts.svg !== undefined ? diagrams.checkSvgOption(opts.svg, inputPaths) : null;
@@ -85,10 +86,11 @@ export async function runAssess(opts: Record<string, unknown>, inputFile: string
   const inputs = parseInputs(raw);
   if (!uncertainty && Object.keys(inputs.errors).length > 0) (await import('../assessment/error-model.js')).validateErrorOverrides(inputs.errors);
   const result = assess(inputs);
-  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputPaths);
+  const modelLoop = diagrams ? await diagrams.modelLoopOption(opts, result) : undefined;
+  if (diagrams && svgPath) await diagrams.writeVisitSvg(result, svgPath, inputPaths, modelLoop);
   if (uncertainty) await printWithUncertainty(result, uncertainty.assessUncertainty(inputs, { draws, seed }, result.choice, result.results), opts, inputSources);
   else await printAssessment(result, { json: opts.json === true, recheck: opts.recheck === true, ...(inputSources ? { inputSources } : {}) });
-  if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true);
+  if (diagrams && opts.sketch === true) diagrams.printSketch(result, opts.json === true, modelLoop);
 }
 
 /** The report with 95 % intervals, variance shares and the method's own error (docs/uncertainty.md). */

@@ -10,6 +10,7 @@ import { toolVersion } from './package-info.js';
 import { addMeasurementOptions } from './measurement-options.js';
 import { registerRecordCommands } from './record-commands.js';
 import { addExamples } from './help-examples.js';
+import { registerScenarioCommand, registerSyntheticCommand } from './scenario-options.js';
 import { addSrOption } from './sr-option.js';
 
 export { helpFooter } from './help-examples.js';
@@ -50,6 +51,7 @@ export function buildProgram(): Command {
     .option('--seed <n>', 'seed of the Monte Carlo draws, 0–4294967295 (default 1); implies --uncertainty')
     .option('--svg <file>', 'also write the estimated pressure–volume diagram as SVG')
     .option('--sketch', 'also print a compact text drawing of the pressure–volume diagram')
+    .option('--model-loop', 'overlay on --svg/--sketch the simulated loop of the model fitted to this visit (docs/model.md)')
     .action(async (opts: Record<string, unknown>, cmd: Command) => {
       const { runAssess } = await import('./assess-command.js');
       await runAssess(opts, inputFileOf(cmd));
@@ -71,6 +73,8 @@ export function buildProgram(): Command {
   addExamples(demo, ['elastimate demo', 'elastimate demo --json']);
 
   registerRecordCommands(program, inputFileOf);
+  registerScenarioCommand(program, inputFileOf);
+  registerSyntheticCommand(program);
 
   const report = program
     .command('report')
@@ -81,6 +85,7 @@ export function buildProgram(): Command {
     .option('--format <format>', 'html or md (default from the --out file name, else html)')
     .option('--draws <n>', 'Monte Carlo draws for the intervals, 1000–500000 (default 20000)')
     .option('--seed <n>', 'seed of the Monte Carlo draws (default 1)')
+    .option('--model-loop', 'overlay on the diagram the simulated loop of the model fitted to the reported visit (docs/model.md)')
     .action(async (file: string, opts: Record<string, unknown>) => {
       const { runReport } = await import('./report-command.js');
       await runReport(file, opts);
@@ -126,7 +131,7 @@ export function commanderMessage(text: string): string {
     [/^too many arguments(?: for '([^']+)')?\. Expected (\d+) arguments? but got (\d+)\.?$/s, (m) => `arguments: got ${m[3]}; accepted: ${m[2]} for ${m[1] ?? 'this command'} (see --help)`],
     [/^missing required argument '([^']+)'$/s, (m) => `${m[1]}: missing; accepted: see --help for the command's arguments`],
     [/^option '([^']+)' argument missing$/s, (m) => `${m[1]}: missing value; accepted: see --help`],
-    [/^unknown command '([^']+)'$/s, (m) => `command: got ${showValue(m[1])}; accepted: assess, demo, record, export, batch, sr-cohort, report (see --help)`],
+    [/^unknown command '([^']+)'$/s, (m) => `command: got ${showValue(m[1])}; accepted: assess, demo, record, export, batch, sr-cohort, report, scenario, synthetic (see --help)`],
   ];
   for (const [pattern, format] of rules) {
     const m = pattern.exec(message);

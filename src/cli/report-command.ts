@@ -22,6 +22,8 @@ export interface ReportModelOptions {
   /** YYYY-MM-DD. */
   generated: string;
   toolVersion: string;
+  /** Overlay the simulated loop of the model fitted to the reported visit. */
+  modelLoop?: boolean;
 }
 
 /** Everything the report shows, computed from the subject file. Pure. */
@@ -66,7 +68,9 @@ export async function buildReportModel(file: SubjectFile, options: ReportModelOp
     ? `Intervals: Monte Carlo over input measurement error, ${first.draws.toLocaleString('en-US')} draws, seed ${first.seed} (docs/uncertainty.md); the method's own error against invasive Ees is shown separately.`
     : 'No intervals were computed.';
 
-  return { subject: file.subject, visits, selected, compared, comparison, generated: options.generated, toolVersion: options.toolVersion, uncertaintyNote };
+  const model: ReportModel = { subject: file.subject, visits, selected, compared, comparison, generated: options.generated, toolVersion: options.toolVersion, uncertaintyNote };
+  if (options.modelLoop) model.modelLoop = (await import('../model/model-loop.js')).modelLoopOverlay(series[selected]!.assessment);
+  return model;
 }
 
 /** The file-name endings of each report format. */
@@ -107,6 +111,7 @@ export async function runReport(subjectPath: string, opts: Record<string, unknow
   const model = await buildReportModel(file, {
     ...(typeof opts.visit === 'string' ? { visit: opts.visit } : {}),
     ...parsed,
+    ...(opts.modelLoop === true ? { modelLoop: true } : {}),
     generated: today(new Date()),
     toolVersion: toolVersion(),
   });

@@ -1,3 +1,5 @@
+import { woodUnitsToMmHgSecondPerMl } from './peripheral-resistance.js';
+
 /**
  * Effective arterial elastance: Ea = Pes / SV  (mmHg / mL).
  * Sunagawa K et al., Am J Physiol 1983;245:H773; Kelly RP et al., Circulation 1992;86:513.
@@ -14,8 +16,7 @@ export function arterialElastance(endSystolicPressure: number, strokeVolume: num
  * Worked example: 22.22 WU (1.3333 mmHg·s/mL) at 60 bpm → 1.333 mmHg/mL.
  */
 export function arterialElastanceFromResistance(resistanceWoodUnits: number, heartRate: number): number {
-  const resistanceMmHgSecondPerMl = (resistanceWoodUnits * 60) / 1000;
-  return (resistanceMmHgSecondPerMl * heartRate) / 60;
+  return (woodUnitsToMmHgSecondPerMl(resistanceWoodUnits) * heartRate) / 60;
 }
 
 /**

@@ -16,3 +16,11 @@ export const WOOD_TO_DYN = (1333.224 * 60) / 1000;
 export function woodUnitsToDyn(woodUnits: number): number {
   return woodUnits * WOOD_TO_DYN;
 }
+
+/**
+ * Wood units (mmHg·min/L) to mmHg·s/mL: × 60/1000 (60 s per min, 1000 mL per L; common practice).
+ * Worked example: 22.22 WU → 1.3333 mmHg·s/mL.
+ */
+export function woodUnitsToMmHgSecondPerMl(woodUnits: number): number {
+  return (woodUnits * 60) / 1000;
+}

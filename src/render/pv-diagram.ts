@@ -27,7 +27,23 @@ export interface PvDiagramOptions {
   /** Overall title drawn above the plot. */
   title?: string;
   width?: number;
+  /** A simulated loop of the model fitted to the visit (src/model), drawn over the estimated one on request. */
+  modelLoop?: ModelLoopOverlay;
 }
+
+/**
+ * A model loop to overlay: the points of the simulated steady beat, its
+ * legend label, and the notes that must travel with it (what it is, the
+ * model's cautions, or why no loop could be simulated: then `points` is empty).
+ */
+export interface ModelLoopOverlay {
+  points: readonly { volume: number; pressure: number }[];
+  label: string;
+  notes: readonly string[];
+}
+
+/** The model loop's style: Okabe & Ito's bluish green, distinct from both visits' colours in hue and in greyscale lightness. */
+export const MODEL_LOOP_STYLE = { colour: '#009E73', width: 2.0, dash: '7 3' } as const;
 
 /** Axis extents shared by the SVG and the terminal drawing. */
 export interface PvDomain {
@@ -65,9 +81,13 @@ export function niceTicks(max: number, target = 5): number[] {
   return ticks;
 }
 
-export function pvDomain(visits: readonly PvVisit[]): PvDomain {
+export function pvDomain(visits: readonly PvVisit[], modelLoop?: ModelLoopOverlay): PvDomain {
   let vMax = 0;
   let pMax = 0;
+  for (const q of modelLoop?.points ?? []) {
+    vMax = Math.max(vMax, q.volume * 1.1);
+    pMax = Math.max(pMax, q.pressure * 1.08);
+  }
   for (const { loop } of visits) {
     vMax = Math.max(vMax, loop.edv * 1.2);
     pMax = Math.max(pMax, loop.peakPressure * 1.12, (loop.pes ?? 0) * 1.12, (loop.edp ?? 0) * 1.5);
@@ -168,12 +188,14 @@ const n2 = (x: number) => formatNumber(x, 2);
 
 export function renderPvDiagram(visits: readonly PvVisit[], options: PvDiagramOptions = {}): string {
   const shown = visits.slice(0, 2);
-  const domain = pvDomain(shown);
+  const model = options.modelLoop;
+  const domain = pvDomain(shown, model);
   const width = options.width ?? 640;
   const plot = { left: 66, top: options.title ? 40 : 18, width: width - 66 - 22, height: 330 };
-  const notes = diagramNotes(shown).flatMap((n) => wrap(n, Math.floor((width - 40) / 5.9)));
+  const notes = [...diagramNotes(shown), ...(model?.notes ?? [])].flatMap((n) => wrap(n, Math.floor((width - 40) / 5.9)));
   const legendTop = plot.top + plot.height + 48;
-  const notesTop = legendTop + 22 * 3 + 6;
+  const modelRow = model && model.points.length > 1 ? 1 : 0;
+  const notesTop = legendTop + 22 * (3 + modelRow) + 6;
   const height = notesTop + notes.length * 14 + 8;
 
   const x = (v: number) => plot.left + (v / domain.volumeMax) * plot.width;
@@ -204,6 +226,10 @@ export function renderPvDiagram(visits: readonly PvVisit[], options: PvDiagramOp
   // Draw the comparison visit first so the selected one sits on top.
   const box: Box = { left: plot.left, top: plot.top, right: plot.left + plot.width, bottom: plot.top + plot.height };
   for (let i = shown.length - 1; i >= 0; i--) out.push(...drawVisit(shown[i]!, i, domain, pt, i === 0, box));
+  if (model && modelRow) {
+    const inside = model.points.map((q): Point => [Math.min(Math.max(q.volume, 0), domain.volumeMax), Math.min(Math.max(q.pressure, 0), domain.pressureMax)]);
+    out.push(`<polygon class="model-loop" data-series="model-loop" points="${inside.map(pt).join(' ')}" fill="none" stroke="${MODEL_LOOP_STYLE.colour}" stroke-width="${MODEL_LOOP_STYLE.width}" stroke-dasharray="${MODEL_LOOP_STYLE.dash}" stroke-linejoin="round"/>`);
+  }
 
   // Legend: visits (colour + marker), then line kinds (dash pattern).
   out.push(`<g class="legend" font-size="12" fill="${INK}">`);
@@ -229,6 +255,11 @@ export function renderPvDiagram(visits: readonly PvVisit[], options: PvDiagramOp
     out.push(`<line x1="${lx}" y1="${ly}" x2="${lx + 26}" y2="${ly}" stroke="${MUTED}" stroke-width="${k === 'loop' ? 2.4 : 1.6}"${dash}/>`);
     out.push(`<text x="${lx + 34}" y="${ly + 4}">${esc(label)}</text>`);
   });
+  if (model && modelRow) {
+    const ly = legendTop + 22 * 3;
+    out.push(`<line x1="${plot.left}" y1="${ly}" x2="${plot.left + 26}" y2="${ly}" stroke="${MODEL_LOOP_STYLE.colour}" stroke-width="${MODEL_LOOP_STYLE.width}" stroke-dasharray="${MODEL_LOOP_STYLE.dash}"/>`);
+    out.push(`<text x="${plot.left + 34}" y="${ly + 4}">${esc(model.label)}</text>`);
+  }
   out.push('</g>');
 
   out.push(`<g class="notes" font-size="11" fill="${MUTED}">`);

@@ -13,7 +13,7 @@ import { compareVisits, type Comparison } from '../records/compare.js';
 import type { SubjectInfo } from '../records/subject-schema.js';
 import { sourceForReaders, CALIBRATED_EES_LABEL, END_EST_WORDS, CALIBRATION_SHIFT_NOTE, EA_RT_LABEL, V0_DIASTOLIC, V0_END_SYSTOLIC, couplingNote } from '../assessment/labels.js';
 import { decimalsFor, formatNumber, formatValue } from './format.js';
-import { renderPvDiagram, type PvVisit } from './pv-diagram.js';
+import { renderPvDiagram, type ModelLoopOverlay, type PvVisit } from './pv-diagram.js';
 import { rightHeartRows } from './right-heart-text.js';
 import { comparisonSummary, judgementWords } from './series.js';
 import { renderTrendChart, type TrendChartSpec } from './trend-chart.js';
@@ -43,6 +43,8 @@ export interface ReportModel {
   toolVersion: string;
   /** How the intervals were computed (draws, seed), or why there are none. */
   uncertaintyNote: string;
+  /** On request (`--model-loop`): the simulated loop of the model fitted to the reported visit, overlaid on the diagram. */
+  modelLoop?: ModelLoopOverlay;
 }
 
 /** What the trend charts show, under their heading in both report formats. */
@@ -76,7 +78,15 @@ export function diagramVisits(m: ReportModel): PvVisit[] {
 }
 
 export function pvDiagramSvg(m: ReportModel): string {
-  return renderPvDiagram(diagramVisits(m), { title: `${m.subject.id}: estimated pressure–volume diagram` });
+  return renderPvDiagram(diagramVisits(m), { title: `${m.subject.id}: estimated pressure–volume diagram`, ...(m.modelLoop ? { modelLoop: m.modelLoop } : {}) });
+}
+
+/** The caption's sentence on the model loop (HTML and Markdown), or '' when none was asked for. */
+export function modelLoopCaption(m: ReportModel): string {
+  if (!m.modelLoop) return '';
+  return m.modelLoop.points.length > 1
+    ? ' The dashed green loop is a model loop: simulated by a model fitted to the reported visit (docs/model.md), not measured; its fit and cautions are printed under the diagram.'
+    : ` ${m.modelLoop.notes[0] ?? ''}`;
 }
 
 const TREND_KEYS = [
@@ -374,7 +384,7 @@ export function renderReportHtml(m: ReportModel): string {
   parts.push(`<p class="muted">${esc(m.uncertaintyNote)}</p>`);
   parts.push('<figure class="pv">');
   parts.push(pvDiagramSvg(m));
-  parts.push(`<figcaption>Estimated pressure–volume diagram of ${esc(visitLabel(sel))}${cmp ? `, with ${esc(visitLabel(cmp))} overlaid (orange, open squares)` : ''}. End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes).</figcaption>`);
+  parts.push(`<figcaption>Estimated pressure–volume diagram of ${esc(visitLabel(sel))}${cmp ? `, with ${esc(visitLabel(cmp))} overlaid (orange, open squares)` : ''}. End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes).${esc(modelLoopCaption(m))}</figcaption>`);
   parts.push('</figure>');
   parts.push('</section>');
 

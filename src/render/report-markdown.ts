@@ -6,7 +6,7 @@
 import { escapeMarkdownInline } from '../text/sanitize.js';
 import { decimalsFor, formatNumber } from './format.js';
 import {
-  REFERENCES, REPORT_TITLE, TREND_NOTE, VISIT_COLUMNS, comparedVisit, keyRows, mechanicsRows, provenanceLine, pvDiagramSvg, reportCaveats,
+  REFERENCES, REPORT_TITLE, TREND_NOTE, VISIT_COLUMNS, comparedVisit, keyRows, mechanicsRows, modelLoopCaption, provenanceLine, pvDiagramSvg, reportCaveats,
   selectedVisit, subjectLine, trendSpecs, visitLabel, type ReportModel,
 } from './report-html.js';
 import { comparisonSummary, judgementWords } from './series.js';
@@ -56,7 +56,7 @@ export function renderReportMarkdown(m: ReportModel, baseName: string): Markdown
   files.push({ name: pvName, content: pvDiagramSvg(m) + '\n' });
   out.push('## Estimated pressure–volume diagram', '');
   out.push(`![Estimated pressure–volume diagram of ${md(visitLabel(sel))}](${encodeURI(pvName)})`, '');
-  out.push(`End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes)${cmp ? `; ${md(visitLabel(cmp))} overlaid in orange with open squares` : ''}.`, '');
+  out.push(`End-systolic line from single-beat Ees and V0(ES); diastolic curve by the Klotz single-beat method; Ea line from (EDV, 0) to (ESV, Pes)${cmp ? `; ${md(visitLabel(cmp))} overlaid in orange with open squares` : ''}.${md(modelLoopCaption(m))}`, '');
 
   out.push(`## Afterload beside Ea, energetics and the diastolic side`, '');
   out.push(...table(['', 'Quantity', 'Value', 'Method or note'], mechanicsRows(a).map((r) => [r.group, r.label, r.value, r.note]), (i) => i === 2));

@@ -8,7 +8,7 @@ import { DEFAULT_WIDTH } from './style.js';
 import { wrap } from './terminal.js';
 import { loopOutline } from '../assessment/mechanics.js';
 import { formatNumber, padLeft } from './format.js';
-import { arterialLine, diagramNotes, diastolicCurvePoints, endSystolicLine, pvDomain, type PvVisit } from './pv-diagram.js';
+import { arterialLine, diagramNotes, diastolicCurvePoints, endSystolicLine, pvDomain, type ModelLoopOverlay, type PvVisit } from './pv-diagram.js';
 
 export interface SketchOptions {
   /** Plot columns (default 56) and rows (default 16), axes excluded. */
@@ -16,6 +16,8 @@ export interface SketchOptions {
   rows?: number;
   /** Width the legend's notes wrap to (default 80, the width off a terminal). */
   width?: number;
+  /** A simulated loop of the model fitted to the visit, drawn over the estimated one on request. */
+  modelLoop?: ModelLoopOverlay;
 }
 
 /** Glyphs, in drawing order (later ones win a shared cell). */
@@ -26,6 +28,7 @@ export const SKETCH_GLYPHS = {
   loop: ['#', 'o'],
   endSystole: ['S', 's'],
   endDiastole: ['D', 'd'],
+  modelLoop: '*',
 } as const;
 
 type Point = [number, number];
@@ -34,7 +37,8 @@ export function renderPvSketch(visits: readonly PvVisit[], options: SketchOption
   const shown = visits.slice(0, 2);
   const cols = Math.max(20, Math.min(120, options.columns ?? 56));
   const rows = Math.max(8, Math.min(48, options.rows ?? 16));
-  const domain = pvDomain(shown);
+  const model = options.modelLoop;
+  const domain = pvDomain(shown, model);
   const grid: string[][] = Array.from({ length: rows }, () => Array.from({ length: cols }, () => ' '));
 
   const cell = ([v, p]: Point): [number, number] | null => {
@@ -67,6 +71,7 @@ export function renderPvSketch(visits: readonly PvVisit[], options: SketchOption
     if (ea) plotPath(ea, SKETCH_GLYPHS.ea);
     for (const seg of loopOutline(loop)) plotPath(seg.points, SKETCH_GLYPHS.loop[i]!);
   }
+  if (model && model.points.length > 1) plotPath([...model.points, model.points[0]!].map((q): Point => [q.volume, q.pressure]), SKETCH_GLYPHS.modelLoop);
   // Markers last, so no line hides them.
   for (let i = shown.length - 1; i >= 0; i--) {
     const loop = shown[i]!.loop;
@@ -93,11 +98,11 @@ export function renderPvSketch(visits: readonly PvVisit[], options: SketchOption
   }
   lines.push(`${' '.repeat(labelWidth)} └${axis.join('')}`);
   lines.push(`${' '.repeat(labelWidth + 2)}${labels.join('').replace(/\s+$/, '')}  mL`);
-  lines.push(...sketchLegend(shown, options.width ?? DEFAULT_WIDTH));
+  lines.push(...sketchLegend(shown, model, options.width ?? DEFAULT_WIDTH));
   return lines;
 }
 
-function sketchLegend(visits: readonly PvVisit[], width: number): string[] {
+function sketchLegend(visits: readonly PvVisit[], model: ModelLoopOverlay | undefined, width: number): string[] {
   const lines: string[] = [];
   visits.forEach((v, i) => {
     const l = v.loop;
@@ -111,5 +116,9 @@ function sketchLegend(visits: readonly PvVisit[], width: number): string[] {
   lines.push(`${SKETCH_GLYPHS.espvr} end-systolic line   ${SKETCH_GLYPHS.ea} Ea line (EDV,0)→(ESV,Pes)   ${SKETCH_GLYPHS.edpvr} diastolic curve`);
   // The same notes as the SVG: what is estimated, what is missing and why.
   lines.push(...diagramNotes(visits).flatMap((n) => wrap(n.charAt(0).toUpperCase() + n.slice(1), width)));
+  if (model) {
+    if (model.points.length > 1) lines.push(`${SKETCH_GLYPHS.modelLoop} ${model.label}`);
+    lines.push(...model.notes.flatMap((n) => wrap(n, width)));
+  }
   return lines;
 }

@@ -5,7 +5,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun } from './fixtures/run-cli.js';
+import { FORBIDDEN_WORDS, ROOT, STACK_FRAME, requireBuild, runCli, type CliRun, expectRefusal } from './fixtures/run-cli.js';
 
 const VISIT = join(ROOT, 'cases', 'hypertension-trial.visit.json');
 const FLAGS = ['--sbp', '120', '--dbp', '80', '--edv', '130', '--esv', '55', '--ef', '60', '--sv', '70', '--pep', '90', '--et', '290'];
@@ -39,16 +39,6 @@ function ok(run: CliRun): string {
   expect(run.code).toBe(0);
   expect(run.stdout).not.toMatch(FORBIDDEN_WORDS);
   return run.stdout;
-}
-
-function expectRefusal(run: CliRun, field: string, value: string): void {
-  expect(run.timedOut).toBe(false);
-  expect(run.code).toBe(2);
-  expect(run.stderr).toMatch(new RegExp(`^elastimate: ${field.replace(/[.-]/g, '\\$&')}: `, 'm'));
-  expect(run.stderr).toContain(value);
-  expect(run.stderr).toContain('accepted:');
-  expect(run.stderr).not.toMatch(STACK_FRAME);
-  expect(run.stdout).toBe('');
 }
 
 let scratch: string;

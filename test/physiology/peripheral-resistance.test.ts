@@ -1,6 +1,6 @@
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import { WOOD_TO_DYN, totalPeripheralResistance, woodUnitsToDyn } from '../../src/physiology/peripheral-resistance.js';
+import { WOOD_TO_DYN, totalPeripheralResistance, woodUnitsToDyn, woodUnitsToMmHgSecondPerMl } from '../../src/physiology/peripheral-resistance.js';
 
 const math = createRequire(import.meta.url)('mathjs') as typeof import('mathjs');
 
@@ -23,5 +23,10 @@ describe('total peripheral resistance', () => {
   it('1 mmHg = 1333.22 dyn/cm², the constant behind the factor (mathjs)', () => {
     expect(math.unit('1 mmHg').toNumber('dyn / cm^2')).toBeCloseTo(1333.22, 2);
     expect((WOOD_TO_DYN * 1000) / 60).toBeCloseTo(math.unit('1 mmHg').toNumber('dyn / cm^2'), 2);
+  });
+
+  it('Wood units → mmHg·s/mL (the model heart\'s resistance unit) equals mathjs: 1 mmHg·min/L in mmHg·s/mL (mathjs unit definitions)', () => {
+    const factor = math.unit('1 mmHg minute / L').toNumber('mmHg s / mL');
+    for (const wood of [1, 19.04, 22.22]) expect(woodUnitsToMmHgSecondPerMl(wood)).toBeCloseTo(wood * factor, 12);
   });
 });

@@ -26,8 +26,8 @@ export interface DrawProgram {
   readonly chunk: number;
   /** The column a drawn input is written into (only inputs given as varying). */
   input(key: GraphInputKey): Float64Array;
-  /** The column of a node (after run); a constant column when the node does not vary. */
-  output(key: ResultKey): Float64Array;
+  /** The column of a node, or of an input as drawn (after run: NaN where outside its domain); a constant column when it does not vary. */
+  output(key: GraphInputKey | ResultKey): Float64Array;
   /** Apply the domains and compute the varying nodes for draws 0…n−1 of the chunk. */
   run(n: number): void;
   /**
