@@ -109,6 +109,15 @@ describe('assess --sr', () => {
     expectNoIdentity(run.stdout, run.stderr);
   });
 
+  it('TAPSE and TR velocity from the SR feed the right-heart coupling (PASP = 4·v² + RAP, simplified Bernoulli)', async () => {
+    const sr = writeSr(join(dir, 'rv.dcm'), { studyDate: '20240105', content: tid5300({ edv: 118, esv: 46, ef: 61, tapseMm: 21, trVelocity: 2.6 }) });
+    const run = ok(await runCli(['assess', '--sr', sr, '--sbp', '130', '--dbp', '80', '--pep', '95', '--et', '285', '--rap', '5', '--json']));
+    const results = JSON.parse(run.stdout).results as Record<string, { value: number | null }>;
+    expect(results.pasp!.value).toBeCloseTo(4 * 2.6 * 2.6 + 5, 10); // 32.04 mmHg
+    expect(results.tapsePasp!.value).toBeCloseTo(21 / (4 * 2.6 * 2.6 + 5), 10);
+    expectNoIdentity(run.stdout, run.stderr);
+  });
+
   it('off a terminal, names every input still missing in one error (PEP and ET are often not in the report)', async () => {
     const sr = writeSr(join(dir, 'nopep.dcm'), { studyDate: '20240105', content: tid5300({ edv: 118, esv: 46, ef: 61 }) });
     const run = await runCli(['assess', '--sr', sr, '--sbp', '120', '--dbp', '80']);
