@@ -10,6 +10,7 @@ import { parseInputs, type RawInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
 import { ejectionFractionFromVolumes } from '../physiology/ejection-fraction.js';
 import { normalizedEjectionOnset } from '../physiology/normalized-time.js';
+import { rightAtrialPressureFromVenaCava } from '../physiology/right-atrial-pressure.js';
 import { strokeVolumeDoppler } from '../physiology/stroke-volume.js';
 import { formatNumber, formatValue } from '../render/format.js';
 import { toInternalUnit } from '../units/quantity.js';
@@ -46,7 +47,7 @@ export interface ManyQuestion<T> {
 }
 
 /** The questions in the order an echo report is read. */
-export const ASK_ORDER = ['rhythm', 'hr', 'edv', 'esv', 'ef', 'doppler', 'pep', 'et', 'valves', 'sbp', 'dbp', 'height', 'weight', 'sex'] as const;
+export const ASK_ORDER = ['rhythm', 'hr', 'edv', 'esv', 'ef', 'doppler', 'pep', 'et', 'valves', 'rightHeart', 'sbp', 'dbp', 'height', 'weight', 'sex'] as const;
 export type StepId = (typeof ASK_ORDER)[number];
 
 /** Numeric steps asked one field at a time. */
@@ -365,10 +366,86 @@ export function valvesUntouched(draft: RawInputs): boolean {
   return VALVE_FLAGS.every((v) => draft[v.key] === undefined);
 }
 
+// ---- right heart (optional section after the left-heart questions)
+
+/** The right-heart fields in the order asked. */
+export const RIGHT_HEART_KEYS = ['tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse'] as const satisfies readonly NumericKey[];
+export type RightHeartKey = (typeof RIGHT_HEART_KEYS)[number];
+
+/** Whether no right-heart value was given yet (then the section starts with "enter them?"). */
+export function rightHeartUntouched(draft: RawInputs): boolean {
+  return RIGHT_HEART_KEYS.every((k) => isAbsent(draft[k]));
+}
+
+export function rightHeartQuestion(entered: boolean): ChoiceQuestion<boolean> {
+  return {
+    message: 'Right heart (optional): TAPSE, TR jet velocity, right-atrial pressure or IVC',
+    choices: [
+      { name: 'skip the right heart', value: false },
+      { name: 'enter right-heart measurements', value: true },
+    ],
+    default: entered,
+  };
+}
+
+/**
+ * Whether and how a right-heart field is asked, given the draft so far: null when it is not asked
+ * (the IVC only when no right-atrial pressure is given; its collapse only with a diameter, as
+ * the estimate needs both or neither).
+ */
+export function rightHeartAsk(key: RightHeartKey, draft: RawInputs, scope: CheckScope): { optional: boolean; extra?: string } | null {
+  switch (key) {
+    case 'tapse':
+      return { optional: true };
+    case 'trVelocity':
+      return { optional: true, extra: 'leave empty when no TR jet is measurable' };
+    case 'rap':
+      // In the flow, an IVC diameter and collapse already given stand for the RAP.
+      if (scope === 'flow' && !isAbsent(draft.ivc) && !isAbsent(draft.ivcCollapse)) return null;
+      return { optional: true, extra: 'leave empty to estimate it from the IVC' };
+    case 'ivc':
+      if (!isAbsent(draft.rap)) return null;
+      // A collapse given without a diameter needs the diameter; on review, empty clears both.
+      return scope === 'flow' && !isAbsent(draft.ivcCollapse) ? { optional: false } : { optional: true, extra: 'leave empty if not measured: no RAP estimate' };
+    case 'ivcCollapse':
+      return !isAbsent(draft.rap) || isAbsent(draft.ivc) ? null : { optional: false };
+  }
+}
+
+/** The draft without any right-heart value ("skip" on review). */
+export function withoutRightHeart(draft: RawInputs): RawInputs {
+  return RIGHT_HEART_KEYS.reduce((next, k) => withEntry(next, k, undefined), draft);
+}
+
+/** The right-atrial pressure the IVC implies (Rudski 2010 bands), or null without both values or with a RAP given. */
+function rapFromIvc(draft: RawInputs): number | null {
+  const ivc = internalValue('ivc', draft);
+  const collapse = internalValue('ivcCollapse', draft);
+  if (!isAbsent(draft.rap) || ivc === null || collapse === null) return null;
+  return rightAtrialPressureFromVenaCava(ivc, collapse).value;
+}
+
+export function rapEstimateNote(draft: RawInputs): string | undefined {
+  const rap = rapFromIvc(draft);
+  if (rap === null) return undefined;
+  return `Right-atrial pressure estimated from the IVC: ${formatValue(rap, 'mmHg')} (Rudski 2010: 3, 8 or 15 mmHg by diameter and sniff collapse).`;
+}
+
+function displayRightHeart(draft: RawInputs): string {
+  if (rightHeartUntouched(draft)) return 'skipped';
+  const parts = [`TAPSE ${displayEntry('tapse', draft)}`, `TR velocity ${isAbsent(draft.trVelocity) ? 'no jet given' : displayEntry('trVelocity', draft)}`];
+  const ivc = `IVC ${displayEntry('ivc', draft)}, collapse ${displayEntry('ivcCollapse', draft)}`;
+  const estimate = rapFromIvc(draft);
+  if (!isAbsent(draft.rap)) parts.push(`RAP ${displayEntry('rap', draft)}` + (isAbsent(draft.ivc) && isAbsent(draft.ivcCollapse) ? '' : ` (${ivc} not used)`));
+  else if (estimate !== null) parts.push(`${ivc} → RAP ${formatValue(estimate, 'mmHg')} estimated`);
+  else parts.push(isAbsent(draft.ivc) && isAbsent(draft.ivcCollapse) ? 'RAP not given' : ivc);
+  return parts.join('; ');
+}
+
 // ---------------------------------------------------------------------------
 // Review
 
-export type ReviewId = 'compute' | 'rhythm' | 'ef' | 'doppler' | 'valves' | 'sex' | NumericKey;
+export type ReviewId = 'compute' | 'rhythm' | 'ef' | 'doppler' | 'valves' | 'rightHeart' | 'sex' | NumericKey;
 
 /** A field's value as entered, with its unit, and the converted value when typed with a unit. */
 export function displayEntry(key: NumericKey, draft: RawInputs): string {
@@ -426,12 +503,13 @@ export function reviewQuestion(draft: RawInputs, extra: readonly NumericKey[] = 
     else if (step === 'ef') choices.push({ name: `${fieldByKey('ef').label}: ${displayEf(draft)}`, value: 'ef' });
     else if (step === 'doppler') choices.push({ name: `Doppler stroke volume: ${displayDoppler(draft)}`, value: 'doppler' });
     else if (step === 'valves') choices.push({ name: `Valve and outflow findings: ${displayValves(draft)}`, value: 'valves' });
+    else if (step === 'rightHeart') choices.push({ name: `Right heart: ${displayRightHeart(draft)}`, value: 'rightHeart' });
     else if (step === 'sex') choices.push({ name: `Sex: ${draft.sex ?? 'not given'}`, value: 'sex' });
     else choices.push({ name: `${fieldByKey(step).label}: ${displayEntry(step, draft)}`, value: step });
   }
   // Other measurements given on the command line or in the file stay correctable.
   for (const f of NUMERIC_FIELDS) {
-    if ((ASK_ORDER as readonly string[]).includes(f.key) || DOPPLER_KEYS.includes(f.key) || f.key === 'ef') continue;
+    if ((ASK_ORDER as readonly string[]).includes(f.key) || DOPPLER_KEYS.includes(f.key) || (RIGHT_HEART_KEYS as readonly string[]).includes(f.key) || f.key === 'ef') continue;
     if (isAbsent(draft[f.key]) && !extra.includes(f.key)) continue;
     choices.push({ name: `${f.label}: ${displayEntry(f.key, draft)}`, value: f.key });
   }
@@ -459,6 +537,7 @@ export function notesAfter(key: NumericKey, draft: RawInputs, scope: CheckScope)
   if (key === 'sbp' || key === 'dbp') notes.push(readingsNote(key, draft));
   if (key === 'pep' || key === 'et') notes.push(timingNote(draft));
   if (key === 'lvotDiameter' || key === 'lvotVti') notes.push(dopplerNote(draft));
+  if (key === 'ivcCollapse') notes.push(rapEstimateNote(draft));
   // In the flow the EF question itself shows the implied EF right after the volumes.
   if (scope === 'all' && (key === 'edv' || key === 'esv')) notes.push(impliedEfNote(draft));
   return notes.filter((n): n is string => n !== undefined);

@@ -12,7 +12,7 @@ import type { RawInputs } from '../assessment/inputs.js';
 import {
   ASK_ORDER, INTRO, dopplerKeys, dopplerQuestion, dopplerSource, dopplerUntouched, defaultText, efQuestion,
   entryFromText, finalProblem, impliedEfNote, isNumberStep, needsAnswer, notesAfter, numberQuestion, reviewQuestion,
-  rhythmQuestion, sexQuestion, valveQuestion, withSex, valvesUntouched, withDopplerSource, withEfAnswer, withEntry, withValves,
+  RIGHT_HEART_KEYS, rhythmQuestion, rightHeartAsk, rightHeartQuestion, rightHeartUntouched, sexQuestion, withoutRightHeart, valveQuestion, withSex, valvesUntouched, withDopplerSource, withEfAnswer, withEntry, withValves,
   type CheckScope, type ChoiceQuestion, type SexAnswer, type ManyQuestion, type ReviewId, type StepId, type TextQuestion,
 } from './prompt-steps.js';
 
@@ -83,11 +83,13 @@ async function askText(ask: Asker, q: TextQuestion): Promise<string> {
   }
 }
 
-async function askNumber(ask: Asker, key: NumericKey, draft: RawInputs, scope: CheckScope, suggestions: Partial<RawInputs>, optional?: boolean): Promise<RawInputs> {
-  const opts: Parameters<typeof numberQuestion>[2] = { scope };
+/** How a numeric question is put: whether it may be left empty, and what empty means. */
+type Asking = { optional?: boolean; extra?: string };
+
+async function askNumber(ask: Asker, key: NumericKey, draft: RawInputs, scope: CheckScope, suggestions: Partial<RawInputs>, how: Asking = {}): Promise<RawInputs> {
+  const opts: Parameters<typeof numberQuestion>[2] = { scope, ...how };
   const def = defaultText(key, draft, suggestions);
   if (def !== undefined) opts.default = def;
-  if (optional !== undefined) opts.optional = optional;
   const text = await askText(ask, numberQuestion(key, draft, opts));
   const next = withEntry(draft, key, entryFromText(fieldByKey(key), text));
   for (const line of notesAfter(key, next, scope)) ask.note(line);
@@ -95,14 +97,14 @@ async function askNumber(ask: Asker, key: NumericKey, draft: RawInputs, scope: C
 }
 
 /** A numeric field in the flow: asked when absent, or when the given value is refused (after saying why). */
-async function flowNumber(ask: Asker, key: NumericKey, draft: RawInputs, suggestions: Partial<RawInputs>, optional?: boolean): Promise<RawInputs> {
+async function flowNumber(ask: Asker, key: NumericKey, draft: RawInputs, suggestions: Partial<RawInputs>, how: Asking = {}): Promise<RawInputs> {
   const need = needsAnswer(key, draft);
   if (!need.ask) return draft;
   if (need.given) {
     ask.note(need.given);
     draft = withEntry(draft, key, undefined);
   }
-  return askNumber(ask, key, draft, 'flow', suggestions, optional);
+  return askNumber(ask, key, draft, 'flow', suggestions, how);
 }
 
 async function askEf(ask: Asker, draft: RawInputs, scope: CheckScope): Promise<RawInputs> {
@@ -115,8 +117,30 @@ async function askDoppler(ask: Asker, draft: RawInputs, scope: CheckScope, sugge
   const current = dopplerUntouched(draft) ? undefined : dopplerSource(draft);
   const source = await ask.select(dopplerQuestion(current));
   let next = withDopplerSource(draft, source);
-  for (const key of dopplerKeys(source)) next = await askNumber(ask, key, next, scope, suggestions, false);
+  for (const key of dopplerKeys(source)) next = await askNumber(ask, key, next, scope, suggestions, { optional: false });
   return next;
+}
+
+/**
+ * The right-heart fields: in the flow, only those missing or refused (given values are not asked
+ * again); on review, each with its current value as default. A RAP typed on review drops the IVC
+ * pair it replaces; an IVC diameter left empty drops its collapse.
+ */
+async function rightHeartFields(ask: Asker, draft: RawInputs, scope: CheckScope, suggestions: Partial<RawInputs>): Promise<RawInputs> {
+  let next = draft;
+  for (const key of RIGHT_HEART_KEYS) {
+    const how = rightHeartAsk(key, next, scope);
+    if (how === null) continue;
+    next = scope === 'flow' ? await flowNumber(ask, key, next, suggestions, how) : await askNumber(ask, key, next, 'all', suggestions, how);
+    if (scope === 'all' && key === 'rap' && next.rap !== undefined) next = withEntry(withEntry(next, 'ivc', undefined), 'ivcCollapse', undefined);
+    if (key === 'ivc' && next.ivc === undefined) next = withEntry(next, 'ivcCollapse', undefined);
+  }
+  return next;
+}
+
+async function askRightHeart(ask: Asker, draft: RawInputs, scope: CheckScope, suggestions: Partial<RawInputs>): Promise<RawInputs> {
+  const enter = await ask.select<boolean>(rightHeartQuestion(!rightHeartUntouched(draft)));
+  return enter ? rightHeartFields(ask, draft, scope, suggestions) : withoutRightHeart(draft);
 }
 
 async function flowStep(ask: Asker, step: StepId, draft: RawInputs, suggestions: Partial<RawInputs>, asked: ReadonlySet<StepId>): Promise<RawInputs> {
@@ -140,12 +164,15 @@ async function flowStep(ask: Asker, step: StepId, draft: RawInputs, suggestions:
       if (dopplerUntouched(draft)) return askDoppler(ask, draft, 'flow', suggestions);
       // Part of the Doppler input was given: ask only for what is missing or refused.
       let next = draft;
-      for (const key of dopplerKeys(dopplerSource(draft))) next = await flowNumber(ask, key, next, suggestions, false);
+      for (const key of dopplerKeys(dopplerSource(draft))) next = await flowNumber(ask, key, next, suggestions, { optional: false });
       return next;
     }
     case 'valves':
       if (!valvesUntouched(draft)) return draft;
       return withValves(draft, await ask.checkbox(valveQuestion(draft, suggestions)));
+    case 'rightHeart':
+      // Right-heart values already given: ask only for what they lack, without the opening question.
+      return rightHeartUntouched(draft) ? askRightHeart(ask, draft, 'flow', suggestions) : rightHeartFields(ask, draft, 'flow', suggestions);
     case 'sex':
       if (draft.sex !== undefined) return draft;
       return withSex(draft, await ask.select<SexAnswer>(sexQuestion(suggestions.sex)));
@@ -178,6 +205,8 @@ async function correct(ask: Asker, id: Exclude<ReviewId, 'compute'>, draft: RawI
       return askDoppler(ask, draft, 'all', suggestions);
     case 'valves':
       return withValves(draft, await ask.checkbox(valveQuestion(draft, suggestions)));
+    case 'rightHeart':
+      return askRightHeart(ask, draft, 'all', suggestions);
     case 'sex':
       return withSex(draft, await ask.select<SexAnswer>(sexQuestion(draft.sex)));
     default:

@@ -38,6 +38,7 @@ describe.skipIf(unavailable !== null)(`assess at a terminal${unavailable ? ` (sk
       { expect: 'Ejection time (in ms', send: '0.285s' + ENTER },
       { expect: 'tNd = PEP/(PEP + ET) = 0.250' },
       { expect: 'Valve and outflow findings (', send: ENTER },
+      { expect: 'Right heart (optional)', send: ENTER }, // skip
       { expect: 'Brachial systolic pressure (in mmHg, accepted 60–260 mmHg', send: '152, 148' + ENTER },
       { expect: 'SBP: mean of 2 readings 150 mmHg' },
       { expect: 'Brachial diastolic pressure (in mmHg', send: '94, 92' + ENTER },

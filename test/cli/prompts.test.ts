@@ -74,6 +74,9 @@ function scripted(steps: Step[]): { ask: Asker; log: Log; left: () => number } {
   return { ask, log, left: () => steps.length - i };
 }
 
+/** The right-heart section's opening question, answered "skip". */
+const SKIP_RIGHT_HEART: Step = { select: false, expect: /^Right heart \(optional\)/ };
+
 const MMHG_PER_KPA = 1000 / 133.322387415; // 1 mmHg = 133.322387415 Pa (conventional definition; common practice)
 
 describe('collectInteractively: the whole flow from nothing', () => {
@@ -90,6 +93,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
     { input: '95', expect: /^Pre-ejection period \(in ms, accepted 20–250 ms/ },
     { input: '0.285 s', expect: /^Ejection time/ },
     { checkbox: [], expect: /^Valve and outflow/ },
+    SKIP_RIGHT_HEART,
     { input: '152, 148', expect: /^Brachial systolic pressure \(in mmHg, accepted 60–260 mmHg; one or several readings/ },
     { input: '94,92', expect: /^Brachial diastolic pressure/ },
     { input: '174', expect: /^Height/ },
@@ -154,6 +158,7 @@ describe('collectInteractively: the whole flow from nothing', () => {
       'Pre-ejection period: 95 ms',
       'Ejection time: 0.285 s (= 285 ms)',
       'Valve and outflow findings: none marked',
+      'Right heart: skipped',
       'Brachial systolic pressure: 152, 148 mmHg (mean 150 mmHg)',
       'Brachial diastolic pressure: 94, 92 mmHg (mean 93 mmHg)',
       'Height: 174 cm',
@@ -176,6 +181,7 @@ describe('collectInteractively: only what is missing', () => {
       { select: 'none', expect: /^Doppler/ },
       { input: '90', expect: /^Pre-ejection period/ },
       { input: '290', expect: /^Ejection time/ },
+      SKIP_RIGHT_HEART,
       { input: '', expect: /^Height/ },
       { input: '', expect: /^Weight/ },
       { select: 'not-given', expect: /^Sex/ },
@@ -183,7 +189,7 @@ describe('collectInteractively: only what is missing', () => {
     ]);
     const raw = await collectInteractively(partial, { ask });
     expect(log.events.filter((e) => e.startsWith('? ')).map((e) => e.slice(2, 12))).toEqual([
-      'Reported e', 'Doppler st', 'Pre-ejecti', 'Ejection t', 'Height (in', 'Weight (in', 'Sex (optio', 'Review: pi',
+      'Reported e', 'Doppler st', 'Pre-ejecti', 'Ejection t', 'Right hear', 'Height (in', 'Weight (in', 'Sex (optio', 'Review: pi',
     ]);
     expect(raw).not.toHaveProperty('sex');
     expect(raw).toMatchObject({ ...partial, ef: 55, pep: 90, et: 290 });
@@ -198,7 +204,7 @@ describe('collectInteractively: only what is missing', () => {
   it('keeps a typed EF that equals the EF the volumes imply as the reported EF', async () => {
     // EDV 120, ESV 50 imply (120 − 50)/120 = 58.3 %, shown as 58: typing 58 reports 58 % (Lang 2015 EF definition).
     const partial: RawInputs = { sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, rhythm: 'sinus', sv: 70, pep: 90, et: 290, height: 170, weight: 70, sex: 'female', aorticStenosis: false };
-    const { ask } = scripted([{ input: '58', expect: /^Reported ejection fraction/ }, { select: 'compute' }]);
+    const { ask } = scripted([{ input: '58', expect: /^Reported ejection fraction/ }, SKIP_RIGHT_HEART, { select: 'compute' }]);
     const raw = await collectInteractively(partial, { ask });
     expect(raw.ef).toBe(58);
     const a = assess(parseInputs(raw));
@@ -211,6 +217,7 @@ describe('collectInteractively: only what is missing', () => {
     const partial: RawInputs = { sbp: 120, dbp: 80, edv: 'abc', esv: 50, ef: 60, pep: 90, et: 290, hr: 64, rhythm: 'sinus', sv: 70, height: 170, weight: 70, sex: 'male', outflowObstruction: false };
     const { ask, log } = scripted([
       { input: '120', expect: /^LV end-diastolic volume/ },
+      SKIP_RIGHT_HEART,
       { select: 'compute' },
     ]);
     const raw = await collectInteractively(partial, { ask });
@@ -224,6 +231,7 @@ describe('collectInteractively: only what is missing', () => {
     const { ask, log } = scripted([
       { input: '120', expect: /^LV end-diastolic volume/ },
       { input: '50', expect: /^LV end-systolic volume/ },
+      SKIP_RIGHT_HEART,
       { select: 'compute' },
     ]);
     const raw = await collectInteractively(partial, { ask });
@@ -246,6 +254,7 @@ describe('collectInteractively: suggestions (the previous visit) are offered as 
       { input: '90' },
       { input: '290' },
       { checkbox: ['mitralRegurgitation'] },
+      SKIP_RIGHT_HEART,
       { input: '16.5kPa' },
       { input: '80' },
       { input: '', expect: /^Height/ }, // takes the suggested 174
@@ -278,6 +287,7 @@ describe('collectInteractively: the review screen', () => {
   it('refuses a correction that contradicts another value (EDV below ESV), then shows the new implied EF', async () => {
     const { ask, log } = scripted([
       { input: '' }, // EF: keep the implied
+      SKIP_RIGHT_HEART,
       { select: 'edv' },
       { input: '40', expect: /^LV end-diastolic volume/ },
       { input: '100' },
@@ -292,6 +302,7 @@ describe('collectInteractively: the review screen', () => {
   it('corrects Doppler source, valve flags, rhythm and EF', async () => {
     const { ask } = scripted([
       { input: '' },
+      SKIP_RIGHT_HEART,
       { select: 'doppler' },
       { select: 'lvot' },
       { input: '2.0' },
@@ -317,17 +328,19 @@ describe('collectInteractively: the review screen', () => {
       { input: '' }, // EF
       { input: '2.0', expect: /^LVOT velocity–time integral/ }, // refused: below 5 cm
       { input: '20', expect: /^LVOT velocity–time integral/ },
+      SKIP_RIGHT_HEART,
       { select: 'compute' },
     ]);
     const raw = await collectInteractively({ ...withoutSv, lvotDiameter: 2 }, { ask });
     expect(log.refusals).toEqual(['lvot-vti: got "2.0"; outside the accepted range; accepted: LVOT velocity–time integral, 5–50 cm']);
-    expect(log.events.filter((e) => e.startsWith('? ')).map((e) => e.slice(2, 12))).toEqual(['Reported e', 'LVOT veloc', 'LVOT veloc', 'Review: pi']);
+    expect(log.events.filter((e) => e.startsWith('? ')).map((e) => e.slice(2, 12))).toEqual(['Reported e', 'LVOT veloc', 'LVOT veloc', 'Right hear', 'Review: pi']);
     expect(raw).toMatchObject({ lvotDiameter: 2, lvotVti: 20 });
   });
 
   it('does not compute while the inputs do not parse, says why, and offers the field it needs', async () => {
     const { ask, log } = scripted([
       { input: '' }, // EF
+      SKIP_RIGHT_HEART,
       { select: 'compute' }, // refused: pes-method "measured" without the measured value
       { select: 'pesMeasured' },
       { input: '104', expect: /^Measured end-systolic pressure \(in mmHg, accepted 40–260 mmHg/ },
@@ -339,6 +352,113 @@ describe('collectInteractively: the review screen', () => {
     expect(reviews[0]!.choices.map((c) => c.value)).not.toContain('pesMeasured');
     expect(reviews[1]!.choices.map((c) => c.name)).toContain('Measured end-systolic pressure: not given');
     expect(assess(parseInputs(raw)).results.pes.value).toBe(104);
+  });
+});
+
+describe('collectInteractively: the optional right-heart section', () => {
+  // Left heart, cuff and body complete except the cuff pressures, so the section's place in the order shows.
+  const leftOnly: RawInputs = { rhythm: 'sinus', hr: 64, edv: 120, esv: 50, ef: 58, pep: 90, et: 290, sv: 70, aorticStenosis: false, height: 170, weight: 70, sex: 'female' };
+  const cuff: Step[] = [{ input: '120', expect: /^Brachial systolic/ }, { input: '80', expect: /^Brachial diastolic/ }];
+  const asked = (log: Log) => log.events.filter((e) => e.startsWith('? ')).map((e) => e.slice(2, 12));
+
+  it('asks once, after the valve findings and before the cuff, defaulting to skip; skipping adds nothing', async () => {
+    const { aorticStenosis: _as, ...noValves } = leftOnly;
+    const { ask, log, left } = scripted([{ checkbox: [] }, SKIP_RIGHT_HEART, ...cuff, { select: 'compute' }]);
+    const raw = await collectInteractively(noValves, { ask });
+    expect(left()).toBe(0);
+    expect(asked(log)).toEqual(['Valve and ', 'Right hear', 'Brachial s', 'Brachial d', 'Review: pi']);
+    const opening = log.selects.find((q) => q.message.startsWith('Right heart'))!;
+    expect(opening.default).toBe(false);
+    expect(opening.choices.map((c) => c.value)).toEqual([false, true]);
+    for (const key of ['tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse']) expect(raw).not.toHaveProperty(key);
+    expect(log.selects.find((q) => q.message.startsWith('Review'))!.choices.map((c) => c.name)).toContain('Right heart: skipped');
+    const r = assess(parseInputs(raw)).results;
+    expect(r.rapUsed.value).toBeNull();
+    expect(r.pasp.value).toBeNull();
+  });
+
+  it('enters TAPSE and the TR jet with RAP left empty: the IVC pair is asked (both needed) and estimates RAP 15 mmHg', async () => {
+    const { ask, log, left } = scripted([
+      { select: true, expect: /^Right heart/ },
+      { input: '17', expect: /^TAPSE \(in mm, accepted 3–40 mm; leave empty to skip\)/ },
+      { input: '3.2', expect: /^Peak tricuspid regurgitant velocity \(in m\/s.*leave empty when no TR jet is measurable/ },
+      { input: '', expect: /^Right-atrial pressure \(in mmHg.*leave empty to estimate it from the IVC/ },
+      { input: '2.4', expect: /^Inferior vena cava diameter \(in cm/ },
+      { input: '', expect: /^IVC collapse with a sniff \(in %/ }, // refused: the diameter needs its collapse
+      { input: '30', expect: /^IVC collapse with a sniff/ },
+      ...cuff,
+      { select: 'compute' },
+    ]);
+    const raw = await collectInteractively(leftOnly, { ask });
+    expect(left()).toBe(0);
+    expect(log.refusals).toHaveLength(1);
+    expect(log.refusals[0]).toMatch(/^ivc-collapse: .*required/);
+    expect(raw).toMatchObject({ tapse: 17, trVelocity: 3.2, ivc: 2.4, ivcCollapse: 30 });
+    expect(raw).not.toHaveProperty('rap');
+    // Rudski 2010 (ASE guideline): IVC > 2.1 cm with < 50 % sniff collapse → RAP 15 mmHg.
+    expect(log.notes).toContain('Right-atrial pressure estimated from the IVC: 15 mmHg (Rudski 2010: 3, 8 or 15 mmHg by diameter and sniff collapse).');
+    const review = log.selects.find((q) => q.message.startsWith('Review'))!.choices.map((c) => c.name);
+    expect(review).toContain('Right heart: TAPSE 17 mm; TR velocity 3.2 m/s; IVC 2.4 cm, collapse 30 % → RAP 15 mmHg estimated');
+    const r = assess(parseInputs(raw)).results;
+    expect(r.rapUsed.value).toBe(15);
+    expect(r.pasp.value).toBeCloseTo(4 * 3.2 ** 2 + 15, 9); // simplified Bernoulli 4·v² + RAP, Rudski 2010
+    expect(r.tapsePasp.value).toBeCloseTo(17 / (4 * 3.2 ** 2 + 15), 9); // TAPSE/PASP, Tello 2019
+  });
+
+  it('does not ask for the IVC when a right-atrial pressure is typed', async () => {
+    const { ask, log, left } = scripted([
+      { select: true, expect: /^Right heart/ },
+      { input: '20', expect: /^TAPSE/ },
+      { input: '2.5', expect: /^Peak tricuspid/ },
+      { input: '5', expect: /^Right-atrial pressure/ },
+      ...cuff,
+      { select: 'compute' },
+    ]);
+    const raw = await collectInteractively(leftOnly, { ask });
+    expect(left()).toBe(0);
+    expect(asked(log)).toEqual(['Right hear', 'TAPSE (in ', 'Peak tricu', 'Right-atri', 'Brachial s', 'Brachial d', 'Review: pi']);
+    expect(raw).toMatchObject({ tapse: 20, trVelocity: 2.5, rap: 5 });
+    const r = assess(parseInputs(raw)).results;
+    expect(r.rapUsed.value).toBe(5);
+    expect(r.pasp.value).toBeCloseTo(4 * 2.5 ** 2 + 5, 9); // 30 mmHg, simplified Bernoulli (Rudski 2010)
+  });
+
+  it('does not ask again what flags gave: no opening question, no TAPSE or IVC diameter, the collapse the diameter needs', async () => {
+    const { ask, log, left } = scripted([
+      { input: '', expect: /^Peak tricuspid/ }, // no jet
+      { input: '', expect: /^Right-atrial pressure/ }, // estimate it from the IVC
+      { input: '60', expect: /^IVC collapse with a sniff/ },
+      ...cuff,
+      { select: 'compute' },
+    ]);
+    const raw = await collectInteractively({ ...leftOnly, tapse: '18', ivc: '1.8' }, { ask });
+    expect(left()).toBe(0);
+    expect(asked(log)).toEqual(['Peak tricu', 'Right-atri', 'IVC collap', 'Brachial s', 'Brachial d', 'Review: pi']);
+    // Rudski 2010: IVC ≤ 2.1 cm with > 50 % sniff collapse → RAP 3 mmHg.
+    expect(assess(parseInputs(raw)).results.rapUsed.value).toBe(3);
+  });
+
+  it('shows the section on review and lets it be corrected, then skipped', async () => {
+    const given: RawInputs = { ...leftOnly, sbp: 120, dbp: 80, tapse: 18, trVelocity: 2.8, ivc: 1.8, ivcCollapse: 60 };
+    const { ask, log, left } = scripted([
+      { select: 'rightHeart', expect: /^Review/ },
+      { select: true, expect: /^Right heart/ },
+      { input: '', expect: /^TAPSE/ }, // keeps 18
+      { input: '3', expect: /^Peak tricuspid/ },
+      { input: '10', expect: /^Right-atrial pressure/ }, // replaces the IVC estimate
+      { select: 'rightHeart', expect: /^Review/ },
+      { select: false, expect: /^Right heart/ },
+      { select: 'compute', expect: /^Review/ },
+    ]);
+    const raw = await collectInteractively(given, { ask });
+    expect(left()).toBe(0);
+    const reviews = log.selects.filter((q) => q.message.startsWith('Review')).map((q) => q.choices.map((c) => c.name));
+    expect(reviews[0]).toContain('Right heart: TAPSE 18 mm; TR velocity 2.8 m/s; IVC 1.8 cm, collapse 60 % → RAP 3 mmHg estimated');
+    expect(reviews[1]).toContain('Right heart: TAPSE 18 mm; TR velocity 3 m/s; RAP 10 mmHg');
+    expect(reviews[2]).toContain('Right heart: skipped');
+    expect(log.texts.find((q) => q.message.startsWith('TAPSE'))!.default).toBe('18');
+    expect(log.selects.filter((q) => q.message.startsWith('Right heart')).map((q) => q.default)).toEqual([true, true]);
+    for (const key of ['tapse', 'trVelocity', 'rap', 'ivc', 'ivcCollapse']) expect(raw).not.toHaveProperty(key);
   });
 });
 
