@@ -4,7 +4,7 @@
  * Rudski 2010), TAPSE/PASP (Guazzi 2013); the CVs behind the least significant change are derived
  * from the RIGHT-NET reading variabilities (Ferrara 2021): PASP 7.6 %, TAPSE/PASP 9.27 %.
  */
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
@@ -70,4 +70,12 @@ describe('record compare, show and export carry PASP and TAPSE/PASP', () => {
     expect(rows.map((r) => r.paspChangeFromFirst)).toEqual(['within-noise', 'beyond-noise', '']);
     expect(rows.map((r) => r.tapsePaspChangeFromFirst)).toEqual(['within-noise', 'beyond-noise', '']);
   });
+
+  it('report (Markdown): the change table has the PASP and TAPSE/PASP rows with both yardsticks', async () => {
+    const out = join(dir, 'rv.md');
+    ok(await runCli(['report', file, '--visit', '2', '--out', out, '--draws', '1000']));
+    const md = readFileSync(out, 'utf8');
+    expect(md).toMatch(/\| Pulmonary artery systolic pressure PASP \| 41 \| 59 \| \+44 % \| \+23 % \/ −19 % \| beyond the least significant change; 95 % interval from the inputs excludes zero \|/);
+    expect(md).toMatch(/\| Right ventricle–pulmonary artery coupling TAPSE\/PASP \| 0\.49 \| 0\.27 \|/);
+  }, 60_000);
 });
