@@ -1,5 +1,6 @@
 /** The options of `elastimate scenario`; the handler is loaded only when the command runs. */
 import type { Command } from 'commander';
+import { addExamples } from './help-examples.js';
 import { addMeasurementOptions } from './measurement-options.js';
 
 export function registerScenarioCommand(program: Command, inputFileOf: (cmd: Command) => string | undefined): void {
@@ -29,10 +30,15 @@ export function registerScenarioCommand(program: Command, inputFileOf: (cmd: Com
       const { runScenarioCommand } = await import('./scenario-command.js');
       await runScenarioCommand(opts, inputFileOf(cmd));
     });
+  addExamples(scenario, [
+    'elastimate scenario --input cases/hypertension-trial.visit.json --resistance -20',
+    'elastimate scenario --subject cases/cardio-oncology.subject.json --to-hr 60 --contractility 15 --intervals',
+    'elastimate scenario --input cases/heart-failure-reduced-ef.visit.json --to-edv 150 --sketch',
+  ]);
 }
 
 export function registerSyntheticCommand(program: Command): void {
-  program
+  const synthetic = program
     .command('synthetic')
     .description('known-truth check of the single-beat method: a seeded virtual cohort with known Ees (docs/model.md)')
     .option('--n <count>', 'virtual adults, 10–5000 (default 200)')
@@ -47,4 +53,9 @@ export function registerSyntheticCommand(program: Command): void {
       const { runSynthetic } = await import('./synthetic-command.js');
       await runSynthetic(opts);
     });
+  addExamples(synthetic, [
+    'elastimate synthetic --n 500 --seed 7',
+    'elastimate synthetic --n 2000 --near cases/hypertension-trial.visit.json --json',
+    'elastimate synthetic --shape hill-b --csv --svg bland-altman.svg',
+  ]);
 }
