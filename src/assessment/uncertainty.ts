@@ -515,7 +515,7 @@ export function withIntervals(results: Results, report: UncertaintyReport): Resu
   return copy;
 }
 
-export const CHANGE_KEYS = ['pes', 'ea', 'ees', 'eaEes'] as const;
+export const CHANGE_KEYS = ['pes', 'ea', 'ees', 'eaEes', 'pasp', 'tapsePasp'] as const;
 export type ChangeKey = (typeof CHANGE_KEYS)[number];
 
 export interface ChangeNoise {
@@ -540,7 +540,7 @@ export interface ChangeUncertainty {
 
 /**
  * The change between two visits of one subject and the noise around it, for
- * Pes, Ea, Ees and Ea/Ees. Each visit is drawn independently (its own streams from
+ * Pes, Ea, Ees, Ea/Ees, PASP and TAPSE/PASP. Each visit is drawn independently (its own streams from
  * the seed) with its own error model; the noise of the change is
  * d = (B_k − B₀) − (A_k − A₀) over paired draws k. Measurement error only: the
  * method's calibration error (Chen 2001 SEE) is largely shared by two visits of

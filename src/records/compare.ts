@@ -46,6 +46,11 @@ export const LSC_FACTOR = 2.77;
  *   (common practice). Stroke volume: test–retest CV 10 % (from memory; repeated
  *   biplane acquisitions gave CV 7–19 %, PubMed 9076390, see docs/methods-verification.md §10).
  *   CV(Pes) = 8 mmHg / mean SBP of the two visits; CV(Ea) = √(CV(Pes)² + 0.10²).
+ * - PASP and TAPSE/PASP: no published test–retest CV was found. Derived here from the
+ *   inter-observer reading variabilities of Ferrara F et al. (RIGHT-NET, Cardiovasc Ultrasound
+ *   2021;19:9): TAPSE 5.3 %, peak TR velocity 3.8 %. These are reading variabilities of one
+ *   acquisition, so a lower bound on visit-to-visit noise. PASP ≈ 4v² (RAP ignored), so
+ *   CV(PASP) ≈ 2 × CV(v) = 7.6 %; CV(TAPSE/PASP) = √(5.3² + 7.6²) ≈ 9.3 %.
  */
 export const REPEATABILITY = {
   eesCv: 0.203,
@@ -55,9 +60,18 @@ export const REPEATABILITY = {
   strokeVolumeCv: 0.1,
   pesSource: 'cuff SD 8 mmHg (ISO 81060-2 pass limit, a conservative stand-in; common practice) over the mean SBP',
   eaSource: 'combined from cuff SD 8 mmHg (ISO 81060-2, common practice) and stroke-volume CV 10 % (from memory)',
+  tapseCv: 0.053,
+  trVelocityCv: 0.038,
+  paspSource: 'derived here: 2 × the inter-observer variability of peak TR velocity, 3.8 % (Ferrara 2021, RIGHT-NET; PASP ≈ 4v², RAP ignored); a reading variability, so a lower bound on visit-to-visit noise; no published repeat CV found',
+  tapsePaspSource: 'derived here: √(5.3² + 7.6²) % from the inter-observer variabilities of TAPSE (5.3 %) and of PASP via TR velocity (2 × 3.8 %) (Ferrara 2021, RIGHT-NET); reading variabilities, so a lower bound on visit-to-visit noise; no published repeat CV found',
 } as const;
 
-export type ChangeKey = 'ea' | 'pes' | 'ees' | 'eaEes';
+/** CV of PASP ≈ 4v²: twice the CV of the TR velocity. */
+export const PASP_CV = 2 * REPEATABILITY.trVelocityCv;
+/** CV of TAPSE/PASP: the two CVs combined in quadrature. */
+export const TAPSE_PASP_CV = Math.hypot(REPEATABILITY.tapseCv, PASP_CV);
+
+export type ChangeKey = 'ea' | 'pes' | 'ees' | 'eaEes' | 'pasp' | 'tapsePasp';
 export type PartKey = 'heartRate' | 'resistance' | 'pulsatile' | 'ea' | 'strokeVolume';
 export type Verdict = 'beyond-noise' | 'within-noise' | 'not-computable';
 
@@ -200,6 +214,15 @@ export function compareVisits(a: Assessment, b: Assessment): Comparison {
   const ees = changeRow('ees', 'End-systolic elastance Ees (single-beat)', 'mmHg/mL', ra.ees.value, rb.ees.value, leastSignificantChange(REPEATABILITY.eesCv, REPEATABILITY.eesSource), ra.ees.reason ?? rb.ees.reason);
   const eaEes = changeRow('eaEes', 'Coupling ratio Ea/Ees', '', ra.eaEes.value, rb.eaEes.value, leastSignificantChange(REPEATABILITY.eesCv, REPEATABILITY.eaEesSource), ra.eaEes.reason ?? rb.eaEes.reason);
 
+  const rows = [ea, pes, ees, eaEes];
+  // The right heart: a row only when both visits have the value (a TR jet at both).
+  if (ra.pasp.value !== null && rb.pasp.value !== null) {
+    rows.push(changeRow('pasp', 'Pulmonary artery systolic pressure PASP', 'mmHg', ra.pasp.value, rb.pasp.value, leastSignificantChange(PASP_CV, REPEATABILITY.paspSource), undefined));
+  }
+  if (ra.tapsePasp.value !== null && rb.tapsePasp.value !== null) {
+    rows.push(changeRow('tapsePasp', 'Right ventricle–pulmonary artery coupling TAPSE/PASP', 'mm/mmHg', ra.tapsePasp.value, rb.tapsePasp.value, leastSignificantChange(TAPSE_PASP_CV, REPEATABILITY.tapsePaspSource), undefined));
+  }
+
   const cautions: string[] = [];
   if (a.choice.strokeVolumeSource !== b.choice.strokeVolumeSource) {
     cautions.push(`Stroke volume comes from different sources (${STROKE_VOLUME_SOURCE_WORDS[a.choice.strokeVolumeSource]} at the first visit, ${STROKE_VOLUME_SOURCE_WORDS[b.choice.strokeVolumeSource]} at the second): part of any change in Ea and Ees may be method, not physiology.`);
@@ -209,7 +232,7 @@ export function compareVisits(a: Assessment, b: Assessment): Comparison {
   }
   const limits = methodLimitWords([a, b].map((x) => ({ flags: x.flags, rhythm: x.inputs.rhythm })));
   if (limits.length) cautions.push(`Method limits apply (${listInWords(limits)}); read the elastance changes with caution.`);
-  return { methodsVersion: a.methodsVersion === b.methodsVersion ? a.methodsVersion : METHODS_VERSION, rows: [ea, pes, ees, eaEes], cautions };
+  return { methodsVersion: a.methodsVersion === b.methodsVersion ? a.methodsVersion : METHODS_VERSION, rows, cautions };
 }
 
 /** Each visit of a series compared with the one before it (null for the first). */

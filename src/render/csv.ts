@@ -328,14 +328,14 @@ export function trailingColumns(): ColumnSpec[] {
 }
 
 /** The changes `export` judges against the first visit of each subject (src/records/compare.ts). */
-const VERDICT_KEYS = ['pes', 'ea', 'ees', 'eaEes'] as const;
+const VERDICT_KEYS = ['pes', 'ea', 'ees', 'eaEes', 'pasp', 'tapsePasp'] as const;
 
 /** Export columns with the verdict of each change from the subject's first visit: the word `record compare 1 <visit> --json` gives. */
 export function verdictColumns(): ColumnSpec[] {
   return VERDICT_KEYS.map((key) => ({
     name: `${key}ChangeFromFirst`,
     unit: '',
-    description: `change in ${key} from the subject's first visit judged against the least significant change (src/records/compare.ts changeVerdict): beyond-noise, within-noise or not-computable; empty when the first visit could not be computed`,
+    description: `change in ${key} from the subject's first visit judged against the least significant change (src/records/compare.ts changeVerdict): beyond-noise, within-noise or not-computable; empty when the first visit could not be computed${key === 'pasp' || key === 'tapsePasp' ? ', or when either visit lacks the value' : ''}`,
   }));
 }
 

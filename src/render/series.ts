@@ -6,7 +6,7 @@
  */
 import type { Assessment } from '../assessment/assess.js';
 import { STANDING_CAVEATS } from '../assessment/caveats.js';
-import type { ChangePart, ChangeRow, Comparison } from '../records/compare.js';
+import type { ChangeKey, ChangePart, ChangeRow, Comparison } from '../records/compare.js';
 import type { SeriesEntry } from '../records/series.js';
 import type { SubjectFile } from '../records/subject-schema.js';
 import { decimalsFor, formatNumber, formatValue, pad, padLeft } from './format.js';
@@ -63,7 +63,7 @@ function changeMark(row: ChangeRow | undefined): string {
   return ` ${signed(row.percentChange, 0)}%${mark}`;
 }
 
-function valueWithChange(key: 'ea' | 'ees' | 'eaEes' | 'pes', entry: SeriesEntry, change: Comparison | null): string {
+function valueWithChange(key: ChangeKey, entry: SeriesEntry, change: Comparison | null): string {
   const q = entry.assessment.results[key];
   const base = formatNumber(q.value, decimalsFor(q.unit));
   return base + (change ? changeMark(change.rows.find((r) => r.key === key)) : '');
@@ -81,6 +81,22 @@ const COLUMNS: Column[] = [
   { title: 'Ees', unit: 'mmHg/mL', width: 12, cell: (e, c) => valueWithChange('ees', e, c) },
   { title: 'Ea/Ees', unit: '', width: 12, cell: (e, c) => valueWithChange('eaEes', e, c) },
 ];
+
+/**
+ * The right heart along the series, under the table, for the visits with a PASP: PASP and
+ * TAPSE/PASP with the change from the previous visit (marked as in the table; a change shows
+ * only when both visits have the value, as `compareVisits` gives it). Empty without any PASP.
+ */
+function rightHeartSeriesLines(entries: readonly SeriesEntry[], changes: readonly (Comparison | null)[], s: Style): string[] {
+  const lines: string[] = [];
+  entries.forEach((e, i) => {
+    if (e.assessment.results.pasp.value === null) return;
+    const change = changes[i] ?? null;
+    const coupling = e.assessment.results.tapsePasp.value === null ? '' : `   TAPSE/PASP ${valueWithChange('tapsePasp', e, change)} mm/mmHg`;
+    lines.push(`  ${pad(String(e.index), 3)} PASP ${valueWithChange('pasp', e, change)} mmHg${coupling}`);
+  });
+  return lines.length ? ['', s.heading('Right heart (changes from the previous visit, marked as above)'), ...lines] : [];
+}
 
 /**
  * The series table. `changes[i]` compares entry i−1 with entry i (null for the
@@ -112,6 +128,7 @@ export function renderSeries(file: SubjectFile, entries: readonly SeriesEntry[],
       const note = couplingNote(q.value);
       out.push(`  ${pad(String(e.index), 3)} Ea/Ees ${q.value === null ? `not computable (${q.reason ?? 'missing input'})` : `${formatNumber(q.value, decimalsFor(q.unit))}: ${note}`}`);
     }
+    out.push(...rightHeartSeriesLines(entries, changes, s));
   }
 
   const notes = entries.filter((e) => e.visit.note);
@@ -177,8 +194,10 @@ export function judgementWords(row: ChangeRow): string {
   return `${lsc}; 95 % interval from the inputs ${row.noise.exceeds ? 'excludes' : 'includes'} zero`;
 }
 
+const SHORT_NAMES: Record<ChangeKey, string> = { pes: 'Pes', ea: 'Ea', ees: 'Ees', eaEes: 'Ea/Ees', pasp: 'PASP', tapsePasp: 'TAPSE/PASP' };
+
 function shortName(row: ChangeRow): string {
-  return row.key === 'eaEes' ? 'Ea/Ees' : row.key === 'ea' ? 'Ea' : row.key === 'ees' ? 'Ees' : 'Pes';
+  return SHORT_NAMES[row.key];
 }
 
 /** One plain sentence per row: what changed and what each yardstick says. */

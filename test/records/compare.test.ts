@@ -163,3 +163,62 @@ describe('compareVisits: change attribution against hand-worked arithmetic', () 
     expect(leastSignificantChange(0.1, 'x').logLimit).toBeCloseTo(0.277, 10);
   });
 });
+
+// Right heart: an invented subject (demo data) with TAPSE, TR velocity and a measured RAP at each visit.
+// PASP = 4·v² + RAP (simplified Bernoulli; Rudski 2010) and TAPSE/PASP (Guazzi 2013), worked by hand below.
+const LEFT = { sbp: 120, dbp: 80, hr: 60, edv: 120, esv: 50, ef: 60, pep: 90, et: 290 };
+const R1 = assess(parseInputs({ ...LEFT, tapse: 20, trVelocity: 3.0, rap: 5 }));
+const R2 = assess(parseInputs({ ...LEFT, tapse: 16, trVelocity: 3.5, rap: 10 }));
+const R3 = assess(parseInputs({ ...LEFT, tapse: 17, trVelocity: 3.4, rap: 10 }));
+
+describe('compareVisits: PASP and TAPSE/PASP judged against 2.77 × CV (CVs derived from Ferrara 2021, RIGHT-NET)', () => {
+  it('derives the CVs from the RIGHT-NET reading variabilities: PASP 2 × 3.8 % = 7.6 %, TAPSE/PASP √(5.3² + 7.6²) = 9.27 %', () => {
+    const c = compareVisits(R1, R2);
+    expect(row(c, 'pasp').lsc.cv).toBeCloseTo(0.076, 12);
+    // √(0.053² + 0.076²) = √(0.002809 + 0.005776) = √0.008585 = 0.0926553.
+    expect(row(c, 'tapsePasp').lsc.cv).toBeCloseTo(0.0926553, 6);
+    expect(row(c, 'pasp').lsc.source).toMatch(/Ferrara 2021.*lower bound/);
+  });
+
+  it('a rise in PASP and a fall in TAPSE/PASP beyond noise', () => {
+    const c = compareVisits(R1, R2);
+    // Visit 1: PASP 4·3.0² + 5 = 41 mmHg, TAPSE/PASP 20/41 = 0.487805.
+    // Visit 2: PASP 4·3.5² + 10 = 59 mmHg, TAPSE/PASP 16/59 = 0.271186.
+    const pasp = row(c, 'pasp');
+    expect(pasp.from).toBeCloseTo(41, 10);
+    expect(pasp.to).toBeCloseTo(59, 10);
+    // |Δln PASP| = ln(59/41) = 0.363965 > 2.77 × 0.076 = 0.210520 → beyond noise.
+    expect(pasp.logChange).toBeCloseTo(0.363965, 6);
+    expect(pasp.lsc.logLimit).toBeCloseTo(0.21052, 6);
+    expect(pasp.verdict).toBe('beyond-noise');
+    const ratio = row(c, 'tapsePasp');
+    expect(ratio.from).toBeCloseTo(0.487805, 6);
+    expect(ratio.to).toBeCloseTo(0.271186, 6);
+    // |Δln TAPSE/PASP| = |ln(656/1180)| = 0.587109 > 2.77 × 0.0926553 = 0.256655 → beyond noise.
+    expect(ratio.logChange).toBeCloseTo(-0.587109, 6);
+    expect(ratio.lsc.logLimit).toBeCloseTo(0.256655, 6);
+    expect(ratio.verdict).toBe('beyond-noise');
+    expect(comparisonSummary(c)[0]).toMatch(/beyond it: .*PASP.*TAPSE\/PASP/);
+  });
+
+  it('small changes within noise', () => {
+    const c = compareVisits(R2, R3);
+    // Visit 3: PASP 4·3.4² + 10 = 56.24 mmHg; |ln(56.24/59)| = 0.047909 < 0.210520 → within noise.
+    expect(row(c, 'pasp').logChange).toBeCloseTo(-0.047909, 6);
+    expect(row(c, 'pasp').verdict).toBe('within-noise');
+    // TAPSE/PASP 17/56.24 = 0.302276; ln(0.302276/0.271186) = 0.108534 < 0.256655 → within noise.
+    expect(row(c, 'tapsePasp').logChange).toBeCloseTo(0.108534, 6);
+    expect(row(c, 'tapsePasp').verdict).toBe('within-noise');
+  });
+
+  it('leaves the rows out unless both visits have the value', () => {
+    const noJet = assess(parseInputs({ ...LEFT, tapse: 18 }));
+    const noTapse = assess(parseInputs({ ...LEFT, trVelocity: 3.2, rap: 5 }));
+    const keys = (c: ReturnType<typeof compareVisits>) => c.rows.map((r) => r.key);
+    expect(keys(compareVisits(R1, noJet))).toEqual(['ea', 'pes', 'ees', 'eaEes']);
+    expect(keys(compareVisits(noJet, R1))).toEqual(['ea', 'pes', 'ees', 'eaEes']);
+    expect(keys(compareVisits(A, B))).toEqual(['ea', 'pes', 'ees', 'eaEes']);
+    // A TR jet at both visits but TAPSE at one only: PASP compared, TAPSE/PASP not.
+    expect(keys(compareVisits(noTapse, R1))).toEqual(['ea', 'pes', 'ees', 'eaEes', 'pasp']);
+  });
+});
