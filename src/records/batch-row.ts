@@ -356,7 +356,23 @@ function outputCells(layout: BatchLayout, cells: readonly string[], row: RowOutc
  * the same order, text quoted by d3-dsv where needed, numbers as csvNumber
  * writes them (a test compares this with csvText of batchRow).
  */
-function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], row: RowOutcome): void {
+/** Writes the inputs as used of one row, each after a comma (usedWriter). */
+type UsedWriter = (out: CsvBytes, inputs: VisitInputs) => void;
+
+/**
+ * The inputs-as-used cells of a layout, each after a comma, as CsvBytes.commaNumber writes them: generated
+ * once per layout from the registry's keys (checked to be plain identifiers, never from user data), as
+ * reads by name are much faster than reads by a key that changes with every cell of every row.
+ */
+function usedWriter(layout: BatchLayout): UsedWriter {
+  const body = layout.used.map((u) => {
+    if (!/^[A-Za-z][A-Za-z0-9]*$/.test(u.key) || !Number.isInteger(u.decimals)) throw new Error(`input key ${u.key} is not a plain identifier`);
+    return `out.commaNumber(inputs.${u.key}, ${u.decimals});`;
+  });
+  return new Function('out', 'inputs', body.join('\n')) as UsedWriter;
+}
+
+function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], row: RowOutcome, writeUsed: UsedWriter): void {
   out.cells(cells, layout.header.length);
   if (row.error !== undefined) {
     for (let i = trailingCount(layout) - 2; i > 0; i--) out.comma();
@@ -365,9 +381,7 @@ function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], 
     out.comma();
     out.text(row.error);
   } else {
-    const inputs = row.inputs;
-    const used = layout.used;
-    for (let i = 0; i < used.length; i++) out.commaNumber(inputs[used[i]!.key], used[i]!.decimals);
+    writeUsed(out, row.inputs);
     out.resultCells(row.results);
     out.comma();
     out.text(flagCell(row.flags));
@@ -397,6 +411,8 @@ export class BatchSheet {
   private readonly out = new CsvBytes();
   private readonly dialect: Dialect;
   private readonly parser: ReturnType<typeof dsvFormat>;
+  /** The layout's inputs-as-used writer, made at the first row. */
+  private writeUsed: UsedWriter | undefined;
 
   constructor(layout?: BatchLayout, dialect: Dialect = layout?.dialect ?? COMMA) {
     this.layout = layout;
@@ -419,7 +435,7 @@ export class BatchSheet {
     if (!layout) throw new Error('batch: a record before the header');
     this.rows++;
     this.failed++;
-    writeRow(this.out, layout, bad.cells, { error: badRecordError(bad, layout.header) });
+    writeRow(this.out, layout, bad.cells, { error: badRecordError(bad, layout.header) }, (this.writeUsed ??= usedWriter(layout)));
     return this.out.take();
   }
 
@@ -435,6 +451,6 @@ export class BatchSheet {
     this.rows++;
     const row = computeRow(layout, cells);
     if (row.error !== undefined) this.failed++;
-    writeRow(this.out, layout, cells, row);
+    writeRow(this.out, layout, cells, row, (this.writeUsed ??= usedWriter(layout)));
   }
 }

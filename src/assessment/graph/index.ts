@@ -40,7 +40,9 @@ export function defaultChoice(inputs: VisitInputs): MethodChoice {
 
 /** Every result of one visit under a method choice. */
 export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Results {
-  return resultsFor(inputs, selectionFor(inputs, choice ?? { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler' }));
+  if (choice) return resultsFor(inputs, selectionFor(inputs, choice));
+  // The visit's own choices, as visitPlan takes them, in one object: a batch computes a hundred thousand visits.
+  return resultsFor(inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod });
 }
 
 /** Whether the visit has a Doppler stroke volume (entered, or from LVOT diameter and VTI). */

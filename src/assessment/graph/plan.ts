@@ -144,15 +144,19 @@ const SELECTION_VALUES: { readonly [K in keyof Selection]: readonly Selection[K]
 };
 const SELECTION_KEYS = Object.keys(SELECTION_VALUES) as (keyof Selection)[];
 
-/** A number naming the selection and the inputs present (mixed radix): the plan cache's key (a cohort has few patterns). */
-function planCode(presentMask: number, selection: Selection): number {
-  let code = presentMask;
-  for (const k of SELECTION_KEYS) {
-    const values = SELECTION_VALUES[k] as readonly string[];
-    code = code * values.length + values.indexOf(selection[k]);
-  }
-  return code;
-}
+/**
+ * A number naming the selection and the inputs present (mixed radix): the plan cache's key (a cohort has few patterns).
+ * Generated once from SELECTION_KEYS (plain identifiers of our own) as readInputs is: each choice read by its
+ * name, since reads by a key that changes on every step of a loop are slow and this runs once per visit.
+ */
+const planCode = ((): ((presentMask: number, selection: Selection) => number) => {
+  const body = SELECTION_KEYS.map((k, i) => {
+    if (!/^[A-Za-z][A-Za-z0-9]*$/.test(k)) throw new Error(`selection key ${k} is not a plain identifier`);
+    return `code = code * ${SELECTION_VALUES[k].length} + V[${i}].indexOf(selection.${k});`;
+  });
+  const factory = new Function('V', `return function planCode(presentMask, selection) { let code = presentMask;\n${body.join('\n')}\nreturn code; };`);
+  return factory(SELECTION_KEYS.map((k) => SELECTION_VALUES[k])) as (presentMask: number, selection: Selection) => number;
+})();
 
 function planByCode(code: number, present: () => boolean[], selection: Selection): Plan {
   let plan = plans.get(code);
