@@ -90,7 +90,7 @@ export async function runSrCohort(folder: string, opts: Record<string, unknown>)
 
   const keys = inputKeys();
   const units = inputUnits();
-  const columns = SR_TARGETS.filter((t) => keys.has(t.key)).map((t) => ({ key: t.key, name: NUMERIC_FIELDS.find((f) => f.key === t.key)?.flag ?? t.key }));
+  const columns = SR_TARGETS.map((t) => ({ key: t.key, name: NUMERIC_FIELDS.find((f) => f.key === t.key)?.flag ?? t.key }));
   const header = ['subject', 'visit_date', ...columns.map((c) => c.name), 'sex', 'sr_files', 'sr_notes'];
   const rows: { date: string; first: string; cells: string[] }[] = [];
   let withoutId = 0;
@@ -106,7 +106,6 @@ export async function runSrCohort(folder: string, opts: Record<string, unknown>)
     const notes = [
       imported.notFound.length ? `not in the report: ${imported.notFound.join(', ')}` : '',
       imported.notUsed.length ? `not used: ${imported.notUsed.join(', ')}` : '',
-      imported.notUsedYet.length ? `read, not an input yet: ${imported.notUsedYet.map((n) => `${n.label} ${n.value}`).join(', ')}` : '',
     ].filter((s) => s !== '').join('; ');
     rows.push({
       date: imported.studyDate ?? '',

@@ -28,7 +28,6 @@ export interface SrImport {
   raw: Record<string, number | string | number[]>;
   sources: Record<string, SrSource>;
   /** Values read that are not inputs of this version (e.g. right-heart measurements). */
-  notUsedYet: { key: SrKey; label: string; value: string }[];
   studyDate: string | null;
   /** Inputs the report does not carry, and inputs whose items were refused (labels). */
   notFound: string[];
@@ -41,7 +40,7 @@ export interface SrImport {
 export type Decide = (d: Disagreement, label: string) => Promise<number | null>;
 
 export interface ImportOptions {
-  /** Keys of the visit input schema; anything else is reported as not used yet. */
+  /** Keys of the visit input schema (sex is taken only when it is one). */
   inputKeys: ReadonlySet<string>;
   /** Default unit of each numeric input (fields registry), to decide whether a bare number is right. */
   inputUnits: ReadonlyMap<string, string>;
@@ -133,7 +132,6 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
 
   const raw: SrImport['raw'] = {};
   const sources: Record<string, SrSource> = {};
-  const notUsedYet: SrImport['notUsedYet'] = [];
   const readLines: string[] = [];
   for (const t of SR_TARGETS) {
     const c = decided.find((x) => x.key === t.key);
@@ -149,10 +147,6 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
       ...(studyDate ? { studyDate } : {}),
       how: c.how,
     };
-    if (!options.inputKeys.has(t.key)) {
-      notUsedYet.push({ key: t.key, label: t.label, value: text });
-      continue;
-    }
     const fieldUnit = options.inputUnits.get(t.key);
     const bare = fieldUnit === undefined || fieldUnit === shownUnit;
     // Repeated cuff readings stay readings (the tool averages them, and its error model counts them).
@@ -166,15 +160,12 @@ export async function importStudy(docs: readonly SrDocument[], options: ImportOp
     readLines.push(`  Sex: ${ex.sex.value} (patient characteristics)`);
   }
   if (readLines.length > 0) summary.push('imported:', ...readLines);
-  if (notUsedYet.length > 0) {
-    summary.push(`read but not used by this version (no such input yet): ${notUsedYet.map((n) => `${n.label} ${n.value}`).join('; ')}.`);
-  }
   summary.push(...refusedLines);
   const missing = SR_TARGETS.filter((t) => !decided.some((c) => c.key === t.key) && !ex.refused.some((r) => r.key === t.key)).map((t) => t.label);
   if (missing.length > 0) summary.push(`not in the report: ${missing.join(', ')}.`);
   if (ex.privateItems > 0) summary.push(`${ex.privateItems} item${ex.privateItems === 1 ? '' : 's'} with vendor-private codes ignored.`);
   const notUsed = [...new Set([...ex.refused.map((r) => targetOf(r.key).label), ...disagreements.filter((d) => !decided.some((c) => c.key === d.key)).map((d) => targetOf(d.key).label)])];
-  return { raw, sources, notUsedYet, studyDate, notFound: missing, notUsed, summary };
+  return { raw, sources, studyDate, notFound: missing, notUsed, summary };
 }
 
 /** The found items of one input, for a prompt: "112 mL (LN 79996-5, file a.dcm)". */

@@ -9,9 +9,10 @@
  */
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
+import { NUMERIC_FIELDS } from '../../src/assessment/fields.js';
 import {
   CONCEPTS, FINDING_SITE, FLOW_DIRECTION, IMAGE_MODE, MEASUREMENT_METHOD, METHOD_VALUES, PATIENT_CHARACTERISTICS,
-  REGURGITANT_FLOW, SELECTION_STATUS, SELECTION_VALUES, SEX_VALUES, SITES, SRT_EQUIVALENTS, SUBJECT_SEX, type Code,
+  REGURGITANT_FLOW, SELECTION_STATUS, SELECTION_VALUES, SEX_VALUES, SITES, SR_TARGETS, SRT_EQUIVALENTS, SUBJECT_SEX, type Code,
 } from '../../src/sr/codes.js';
 
 const LOOKUP = `
@@ -92,5 +93,12 @@ describe('SR code table against pydicom\'s DICOM code dictionary (Debian python3
     const cited = [...row.list.matchAll(/CID (\d+)/g)].map((m) => Number(m[1]));
     const entry = dictionary[`${row.concept.scheme} ${row.concept.code}`]!;
     for (const cid of cited) expect(entry.cids, `CID ${cid}`).toContain(cid);
+  });
+});
+
+describe('SR targets and the visit inputs', () => {
+  it('every measurement the importer looks for is an input of a visit (so nothing read is silently dropped)', () => {
+    const inputs = new Set(NUMERIC_FIELDS.map((f) => f.key as string));
+    expect(SR_TARGETS.map((t) => t.key).filter((k) => !inputs.has(k))).toEqual([]);
   });
 });
