@@ -31,6 +31,11 @@ export const THRESHOLDS = {
   amplificationAge: 40,
 } as const;
 
+/** Whether a visit carries any right-heart measurement (the right-heart checks and views apply). */
+export function hasRightHeartMeasurements(inputs: VisitInputs): boolean {
+  return inputs.tapse !== null || inputs.trVelocity !== null || inputs.rap !== null || inputs.ivc !== null;
+}
+
 /**
  * The flags of one visit, in a fixed order. With `messages` false (a batch,
  * which writes only the codes) the same flags come with empty messages,
@@ -92,8 +97,7 @@ export function checkVisit(inputs: VisitInputs, r: Results, messages = true): Fl
   }
 
   // Right heart: what the TR-derived numbers can and cannot say (common practice; Rudski 2010).
-  const rightHeartGiven = inputs.tapse !== null || inputs.trVelocity !== null || inputs.rap !== null || inputs.ivc !== null;
-  if (rightHeartGiven && inputs.trVelocity === null) {
+  if (hasRightHeartMeasurements(inputs) && inputs.trVelocity === null) {
     add('no-tr-jet', 'note', m ? 'No tricuspid regurgitant velocity given: without a measurable TR jet there is no PASP and no TAPSE/PASP index.' : '');
   }
   if (r.pasp.value !== null) {

@@ -4,6 +4,7 @@
  * them from here, so the two views cannot word it differently.
  */
 import type { Assessment } from '../assessment/assess.js';
+import { hasRightHeartMeasurements } from '../assessment/checks.js';
 import type { Quantity } from '../assessment/result.js';
 import { rightAtrialPressureFromVenaCava } from '../physiology/right-atrial-pressure.js';
 import { TAPSE_PASP_CUT_OFFS, TR_VELOCITY_SUSPICION_ABOVE } from '../physiology/right-ventricular-coupling.js';
@@ -15,12 +16,6 @@ export interface RightHeartRow {
   note: string;
 }
 
-/** Whether the visit carries any right-heart measurement (no rows otherwise). */
-export function hasRightHeart(a: Assessment): boolean {
-  const i = a.inputs;
-  return i.tapse !== null || i.trVelocity !== null || i.rap !== null || i.ivc !== null;
-}
-
 function shown(q: Quantity): string {
   return q.value === null ? '—' : formatValue(q.value, q.unit);
 }
@@ -30,7 +25,7 @@ function why(q: Quantity, text: string): string {
 }
 
 export function rightHeartRows(a: Assessment): RightHeartRow[] {
-  if (!hasRightHeart(a)) return [];
+  if (!hasRightHeartMeasurements(a.inputs)) return [];
   const i = a.inputs;
   const r = a.results;
   const rapNote = (): string => {
