@@ -186,7 +186,7 @@ describe('BatchSheet bytes', () => {
       fc.double(),
       fc.double({ min: -2000, max: 2000 }),
       fc.integer({ min: -1e6, max: 1e6 }).map((n) => n / 1000),
-      fc.constantFrom(0, -0, 0.05, 0.5, 1.005, 2.675, 4.9999e-6, 99999.999995, 2 ** 31 / 100, 2 ** 53 / 1e5, 1e300, Number.NaN),
+      fc.constantFrom(0, -0, 0.05, 0.5, 1.005, 2.675, 4.9999e-6, 99999.999995, 2 ** 31 / 100, 2 ** 53 / 1e5, 1e300, Number.NaN, 0.49999999999999994, -0.49999999999999994, 0.0049999999999999994, 1.4999999999999998, 2147483646.5, 2147483647, 21474836.47, 2 ** 31 - 0.5),
     );
     fc.assert(
       fc.property(value, fc.constantFrom(...units), (v, unit) => {
