@@ -173,6 +173,48 @@ export class CsvBytes {
     this.pos = start + this.buf.write(t, start, 'utf8');
   }
 
+  /** Where the last plainLine stopped: the LF or CR that ends the line, or the end of the text. */
+  lineEnd = 0;
+
+  /**
+   * One line of text without a double quote, from `start` up to the next LF
+   * or CR (or `end`), its cells separated by `sep`. When it has exactly
+   * `starts.length - 1` cells and each is one that text() copies as it is
+   * (printable ASCII, no comma, not beginning like a formula), the line is
+   * written exactly as cells() writes its cells, in one pass, the start of
+   * cell k goes into starts[k] and one past the line's end into
+   * starts[count], and the count comes back. Otherwise nothing is written
+   * and the answer is -1. Either way lineEnd is set.
+   */
+  plainLine(text: string, start: number, end: number, sep: number, starts: Int32Array): number {
+    this.room(end - start);
+    const buf = this.buf;
+    let p = this.pos;
+    let plain = true;
+    let count = 0;
+    let cellStart = true;
+    let i = start;
+    starts[0] = start;
+    for (; i < end; i++) {
+      const c = text.charCodeAt(i);
+      if (c === sep) {
+        buf[p++] = 44;
+        if (++count < starts.length) starts[count] = i + 1;
+        cellStart = true;
+        continue;
+      }
+      if (c === 10 || c === 13) break;
+      if (c < 0x20 || c >= 0x7f || c === 44 || c === 34 || (cellStart && FORMULA_START[c] === 1)) plain = false;
+      buf[p++] = c;
+      cellStart = false;
+    }
+    this.lineEnd = i;
+    if (!plain || ++count !== starts.length - 1) return -1;
+    starts[count] = i + 1;
+    this.pos = p;
+    return count;
+  }
+
   /** The first `width` cells (missing ones empty), as text cells separated by commas. */
   cells(cells: readonly string[], width: number): void {
     for (let i = 0; i < width; i++) {

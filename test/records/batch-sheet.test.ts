@@ -9,6 +9,7 @@
  */
 import { parse } from 'csv-parse/sync';
 import { stringify } from 'csv-stringify/sync';
+import { dsvFormat } from 'd3-dsv';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
@@ -177,6 +178,65 @@ describe('BatchSheet bytes', () => {
       ),
       { numRuns: 60 },
     );
+  });
+
+  it('of pieces without a double quote (each line copied whole where it can be) equal csvText of batchRow for every separator, line end and odd cell', () => {
+    // The line-copy path (BatchSheet.plainPiece, CsvBytes.plainLine) against the cell-by-cell one: d3-dsv's
+    // parseRows reads the whole text into rows, and batchRow of each row, written by csvText, is what the
+    // sheet must write, whatever the pieces the splitter cuts.
+    const dialects = [
+      { separator: ',', decimalComma: false },
+      { separator: ';', decimalComma: true },
+      { separator: '\t', decimalComma: false },
+    ];
+    // Cells that text() does not copy as they are (formula-like, control characters, non-ASCII, a comma), and plain ones.
+    const odd = fc.constantFrom('=1+1', '-x', '+', '@a', '\tx', 'x\u0007y', 'é', '1,5', '-2.5', '', ' ', '~', '=', 'ok');
+    const lineEnd = fc.constantFrom('\n', '\r\n', '\r');
+    const line = fc.tuple(row, fc.array(fc.tuple(fc.nat(40), odd), { maxLength: 1 }), lineEnd, fc.boolean(), fc.boolean());
+    let plainRows = 0;
+    let otherRows = 0;
+    fc.assert(
+      fc.property(fc.constantFrom(...dialects), fc.array(line, { maxLength: 30 }), fc.array(fc.integer({ min: 1, max: 3000 }), { minLength: 1, maxLength: 6 }), fc.boolean(), (dialect, lines, cuts, endsWithBreak) => {
+        const sep = dialect.separator;
+        let body = '';
+        lines.forEach(([cells, oddCells, end, blank, tidy], k) => {
+          const own = cells.map((c) => c.replace(/["\r\n]/g, ' '));
+          // As most cohort files are: a plain id and note.
+          if (tidy) own.forEach((c, i) => (own[i] = i === 0 ? `S-${k}` : i === 22 ? 'note' : c));
+          for (const [at, v] of oddCells) own[at % Math.max(1, own.length)] = v;
+          body += own.join(sep);
+          if (k < lines.length - 1 || endsWithBreak) body += blank ? end + end : end;
+        });
+        const input = `${HEADER.join(sep)}\n${body}`;
+        const splitter = new RecordSplitter();
+        let sheet: BatchSheet | undefined;
+        const parts: string[] = [];
+        const take = (segments: Segment[]) => {
+          for (const segment of segments) {
+            sheet ??= new BatchSheet(undefined, splitter.dialect);
+            parts.push(decoder.decode(segment.bad ? sheet.bad(segment.bad) : sheet.piece(segment.text)));
+          }
+        };
+        for (let at = 0, k = 0; at < input.length; k++) {
+          const size = cuts[k % cuts.length]!;
+          take(splitter.push(input.slice(at, at + size)));
+          at += size;
+        }
+        take(splitter.end());
+        const wanted = planBatch(HEADER, dialect);
+        const kept = dsvFormat(sep).parseRows(input).slice(1).filter((r) => !(r.length === 1 && r[0] === ''));
+        for (const r of kept) {
+          if (r.length === HEADER.length && r.every((c) => /^[\x20-\x7e]*$/.test(c) && !c.includes(',') && !/^[=+\-@]/.test(c))) plainRows++;
+          else otherRows++;
+        }
+        expect(parts.join('')).toBe(csvText([wanted.outputHeader, ...kept.map((r) => batchRow(wanted, r))]));
+        expect(sheet?.rows ?? 0).toBe(kept.length);
+      }),
+      { numRuns: 150 },
+    );
+    // Both paths were taken, many times.
+    expect(plainRows).toBeGreaterThan(200);
+    expect(otherRows).toBeGreaterThan(200);
   });
 
   it('write numbers exactly as csvNumber does, whatever the value and unit', () => {
