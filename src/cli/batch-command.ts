@@ -87,7 +87,6 @@ interface Slot {
 class PieceWorker {
   private readonly worker: Worker;
   private readonly waiting = new Map<number, { ok: (c: Computed) => void; fail: (e: Error) => void }>();
-  private ready = false;
   private hasHeader = false;
   /** Why the worker stopped, if it did: the run fails with it. */
   failure: Error | undefined;
@@ -96,11 +95,7 @@ class PieceWorker {
     // Beside this module: dist/cli/batch-worker.js, or dist/bundle/batch-worker.js in the bundle.
     // No inherited Node options: `--input-type`, `--eval` and the like would stop a worker from a file.
     this.worker = new Worker(new URL('./batch-worker.js', import.meta.url), { execArgv: [] });
-    this.worker.on('message', (m: PieceReply | 'ready') => {
-      if (m === 'ready') {
-        this.ready = true;
-        return;
-      }
+    this.worker.on('message', (m: PieceReply) => {
       const w = this.waiting.get(m.seq);
       this.waiting.delete(m.seq);
       w?.ok({ bytes: m.bytes, rows: m.rows, failed: m.failed });
@@ -111,7 +106,6 @@ class PieceWorker {
 
   private stop(err: Error): void {
     this.failure ??= err;
-    this.ready = false;
     for (const w of this.waiting.values()) w.fail(this.failure);
     this.waiting.clear();
   }
@@ -122,9 +116,12 @@ class PieceWorker {
     this.hasHeader = true;
   }
 
-  /** Started, told the header, healthy and holding fewer pieces than WORKER_DEPTH. */
+  /**
+   * Told the header, healthy and holding fewer pieces than WORKER_DEPTH. A worker still starting up
+   * has room: its messages wait for it, so it begins on its first piece as soon as it is up.
+   */
   hasRoom(): boolean {
-    return this.ready && this.hasHeader && this.failure === undefined && this.waiting.size < WORKER_DEPTH;
+    return this.hasHeader && this.failure === undefined && this.waiting.size < WORKER_DEPTH;
   }
 
   run(seq: number, text: string): Promise<Computed> {
