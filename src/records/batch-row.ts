@@ -225,6 +225,13 @@ function numericText(text: string, unit: string, decimalComma: boolean, typed: M
 }
 
 /**
+ * A row's cell as read: its text or, from a line read whole (BatchSheet
+ * plainPiece), the value of a bare number in a numeric column whose header
+ * gives no unit: what readCells would make of that text.
+ */
+type ReadCell = string | number;
+
+/**
  * Read one row's cells; empty cells and missing-value marks are absent. The
  * numeric inputs go into `numbers` by registry position (NUMERIC_FIELDS
  * order: the text as entered, or a list of readings), every other input into
@@ -234,12 +241,17 @@ function numericText(text: string, unit: string, decimalComma: boolean, typed: M
  * the right shape. Several readings of one input are separated by `;` (not in
  * semicolon files), `|`, or spaces between plain numbers.
  */
-function readCells(layout: BatchLayout, cells: readonly string[], numbers: unknown[], checkShape: boolean, typed?: Map<string, string>): RawInputs {
+function readCells(layout: BatchLayout, cells: readonly ReadCell[], numbers: unknown[], checkShape: boolean, typed?: Map<string, string>): RawInputs {
   const raw: Record<string, unknown> = {};
   const decimalComma = layout.dialect.decimalComma;
   let badLists: number[] | undefined;
   for (const { index, column, unit } of layout.recognised) {
-    const cell = (cells[index] ?? '').trim();
+    const read = cells[index];
+    if (typeof read === 'number') {
+      numbers[(column as { field: number }).field] = read;
+      continue;
+    }
+    const cell = (read ?? '').trim();
     if (isMissingMark(cell)) continue;
     switch (column.kind) {
       case 'number': {
@@ -297,9 +309,9 @@ function asTyped(err: InputError, typed: Map<string, string>): string {
  * parseFieldValues), computeResults and checkVisit. Never throws for bad
  * input: the reason (one line) comes back instead.
  */
-function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
+function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome {
   const width = layout.header.length;
-  if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
+  if (cells.length > width && cells.slice(width).some((c) => typeof c !== 'string' || c.trim() !== '')) {
     return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).map(showValue).join(', ')}` };
   }
   const typed = layout.dialect.decimalComma ? new Map<string, string>() : undefined;
@@ -425,8 +437,9 @@ export class BatchSheet {
   private writeUsed: UsedWriter | undefined;
   /** plainPiece's scratch: cell starts of a line, its cells (only those read are set), the positions read. */
   private starts: Int32Array | undefined;
-  private lineCells: string[] | undefined;
+  private lineCells: ReadCell[] | undefined;
   private readAt: Int32Array | undefined;
+  private readAsNumber: Uint8Array | undefined;
 
   constructor(layout?: BatchLayout, dialect: Dialect = layout?.dialect ?? COMMA) {
     this.layout = layout;
@@ -452,15 +465,20 @@ export class BatchSheet {
    * parseRows reads such text (a record ends at LF, CRLF or a lone CR; a line
    * break at the end of the piece ends the last record; an empty line is no
    * record) and the same output. A line with as many cells as the header,
-   * each plain, is copied whole as it is read (CsvBytes.plainLine) and only
-   * the cells the computation reads become strings; any other line goes to
-   * record() as its cells.
+   * each plain, is copied whole as it is read (CsvBytes.plainLine); of its
+   * cells only those the computation reads are read, a bare number in a
+   * numeric column straight into its value, the rest as strings (and the
+   * whole row as strings again when it has an error, whose message quotes
+   * the cells as typed); any other line goes to record() as its cells.
    */
   private plainPiece(layout: BatchLayout, text: string): void {
     const width = layout.header.length;
     const starts = (this.starts ??= new Int32Array(width + 1));
-    const cells = (this.lineCells ??= new Array<string>(width).fill(''));
+    const cells = (this.lineCells ??= new Array<ReadCell>(width).fill(''));
     const read = (this.readAt ??= Int32Array.from(layout.recognised, (r) => r.index));
+    // The columns whose bare numbers are read as numbers at once (readCells takes them as they are): those
+    // without a unit in the header. (A bare number has no comma, so a decimal-comma file reads it alike.)
+    const numeric = (this.readAsNumber ??= Uint8Array.from(layout.recognised, (r) => (r.column.kind === 'number' && r.unit === '' ? 1 : 0)));
     const sep = this.dialect.separator.charCodeAt(0);
     const writeUsed = (this.writeUsed ??= usedWriter(layout));
     const out = this.out;
@@ -472,12 +490,28 @@ export class BatchSheet {
       const count = out.plainLine(text, i, n, sep, starts);
       const end = out.lineEnd;
       if (count === width) {
+        let parsed = false;
         for (let k = 0; k < read.length; k++) {
           const at = read[k]!;
-          cells[at] = text.slice(starts[at]!, starts[at + 1]! - 1);
+          const from = starts[at]!;
+          const to = starts[at + 1]! - 1;
+          if (numeric[k] === 1) {
+            const value = bareNumber(text, from, to);
+            if (value === value) {
+              cells[at] = value;
+              parsed = true;
+              continue;
+            }
+          }
+          cells[at] = text.slice(from, to);
         }
         this.rows++;
-        const row = computeRow(layout, cells);
+        let row = computeRow(layout, cells);
+        if (row.error !== undefined && parsed) {
+          // The message quotes cells as typed: read the row again as text.
+          for (let k = 0; k < read.length; k++) cells[read[k]!] = text.slice(starts[read[k]!]!, starts[read[k]! + 1]! - 1);
+          row = computeRow(layout, cells);
+        }
         if (row.error !== undefined) this.failed++;
         writeTrailing(out, layout, row, writeUsed);
       } else this.record(text.slice(i, end).split(this.dialect.separator)); // an empty line is no record there

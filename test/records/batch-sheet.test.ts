@@ -283,4 +283,17 @@ describe('bare numbers', () => {
       '123456789012345', '1234567890123456', '0.000000000000001', '9007199254740993', '000000000000000001.5', '99.99999999999999'];
     for (const s of cases) expect(Object.is(bareNumber(s), reference(s)), s).toBe(true);
   });
+
+  it('read from a range of a longer text exactly as from that range cut out', () => {
+    const chars = fc.constantFrom('0', '1', '7', '9', '.', '+', '-', 'e', 'E', ' ', 'x', ',', '\n');
+    const text = fc.oneof(fc.array(chars, { maxLength: 30 }).map((cs) => cs.join('')), fc.array(fc.double().map(String), { maxLength: 4 }).map((xs) => xs.join(',')));
+    fc.assert(
+      fc.property(text, fc.nat(), fc.nat(), (s, a, b) => {
+        const start = s.length === 0 ? 0 : a % (s.length + 1);
+        const end = start + (b % (s.length - start + 1));
+        expect(Object.is(bareNumber(s, start, end), reference(s.slice(start, end))), JSON.stringify([s, start, end])).toBe(true);
+      }),
+      { numRuns: 20000 },
+    );
+  });
 });
