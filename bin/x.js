@@ -2,8 +2,8 @@
 // Tiny shim: runs the compiled CLI built by `npm install` (prepare: tsc, then the bundle).
 // The single-file bundle starts faster; it is used only when it is at least as new as tsc's output.
 import { statSync } from 'node:fs';
-import { Worker } from 'node:worker_threads';
-if (process.env.PRE && process.argv[2]==='batch') globalThis.__pre = new Worker(new URL('../dist/bundle/batch-worker.js', import.meta.url), { execArgv: [] });
+import { setFlagsFromString } from 'node:v8';
+for (const f of (process.env.V8F ?? '').split(' ').filter(Boolean)) setFlagsFromString(f);
 
 const compiled = new URL('../dist/cli/main.js', import.meta.url);
 const bundled = new URL('../dist/bundle/main.js', import.meta.url);

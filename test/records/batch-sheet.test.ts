@@ -19,7 +19,7 @@ import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { InputError } from '../../src/errors.js';
 import { BatchSheet, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
-import { RecordSplitter, type Segment } from '../../src/records/csv-records.js';
+import { RecordSplitter, type Dialect, type Segment } from '../../src/records/csv-records.js';
 import { CsvBytes, csvNumber, csvText, flagCell, guardCell, notComputableCell } from '../../src/render/csv.js';
 import { bareNumber } from '../../src/units/quantity.js';
 
@@ -184,7 +184,7 @@ describe('BatchSheet bytes', () => {
     // The line-copy path (BatchSheet.plainPiece, CsvBytes.plainLine) against the cell-by-cell one: d3-dsv's
     // parseRows reads the whole text into rows, and batchRow of each row, written by csvText, is what the
     // sheet must write, whatever the pieces the splitter cuts.
-    const dialects = [
+    const dialects: Dialect[] = [
       { separator: ',', decimalComma: false },
       { separator: ';', decimalComma: true },
       { separator: '\t', decimalComma: false },
