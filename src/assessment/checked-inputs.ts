@@ -38,6 +38,15 @@ export function dedupe(problems: InputProblem[]): InputProblem[] {
 const REQUIRED_AT: readonly number[] = NUMERIC_FIELDS.flatMap((f, i) => (f.required ? [i] : []));
 const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i])) as Record<NumericKey, number>;
 
+/** parseFieldValues's means, by registry position (NaN: absent or refused), kept between calls: it runs once per batch row. */
+const fieldMeans = new Float64Array(NUMERIC_FIELDS.length);
+
+/** The mean of a field's readings, null when absent or refused. */
+function meanOf(i: number): number | null {
+  const m = fieldMeans[i]!;
+  return m === m ? m : null;
+}
+
 /**
  * Parse raw inputs whose shape is already known to be right (checkRawShape,
  * or a batch row built cell by cell) into internal units. Throws one
@@ -64,14 +73,14 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
     if (isAbsent(given[i])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
   }
 
-  // Per field (registry order): the mean of its readings in internal units, null when absent or refused.
-  const means: (number | null)[] = new Array<number | null>(NUMERIC_FIELDS.length);
+  // Per field (registry order): the mean of its readings in internal units, NaN when absent or refused.
+  const means = fieldMeans;
   let sbpReadings: number[] | undefined;
   let dbpReadings: number[] | undefined;
   for (let i = 0; i < NUMERIC_FIELDS.length; i++) {
     const f = NUMERIC_FIELDS[i]!;
     const value = given[i];
-    means[i] = null;
+    means[i] = Number.NaN;
     if (isAbsent(value)) continue;
     const list = Array.isArray(value) ? (value as unknown[]) : undefined;
     const count = list ? list.length : 1;
@@ -92,7 +101,7 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
     else if (f.key === 'dbp') dbpReadings = parsed;
   }
 
-  const one = (i: number): number | null => means[i] ?? null;
+  const one = meanOf;
   const sbp = one(FIELD_INDEX.sbp);
   const dbp = one(FIELD_INDEX.dbp);
   const edv = one(FIELD_INDEX.edv);

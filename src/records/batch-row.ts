@@ -295,6 +295,9 @@ function trailingCount(layout: BatchLayout): number {
 /** What one row gives: its inputs as used, results and flags, or why it could not be computed. */
 type RowOutcome = { inputs: VisitInputs; results: Results; flags: Flag[]; error?: undefined } | { error: string };
 
+/** computeRow's numeric inputs by registry position, kept between rows. */
+const rowNumbers = new Array<unknown>(NUMERIC_FIELDS.length).fill(undefined);
+
 /** The results of the row computeRow computed last (graph/plan.ts resultsInto). */
 let rowResults: Results | undefined;
 
@@ -316,8 +319,8 @@ function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome
   }
   const typed = layout.dialect.decimalComma ? new Map<string, string>() : undefined;
   try {
-    // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position.
-    const numbers = new Array<unknown>(NUMERIC_FIELDS.length);
+    // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position (in one array kept between rows).
+    const numbers = rowNumbers.fill(undefined);
     const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed));
     // This thread's one results object, rewritten for every row: a row's cells are written before the next row is computed.
     const results = computeResultsInto((rowResults ??= scratchResults()), inputs);
