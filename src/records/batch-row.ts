@@ -298,7 +298,9 @@ type RowOutcome = { inputs: VisitInputs; results: Results; flags: Flag[]; error?
 /** computeRow's numeric inputs by registry position, kept between rows. */
 const rowNumbers = new Array<unknown>(NUMERIC_FIELDS.length).fill(undefined);
 
-/** The results of the row computeRow computed last (graph/plan.ts resultsInto). */
+/** The inputs and results of the row computeRow computed last, rewritten for every row: a row's cells are written before the next row is computed. */
+let rowInputs: VisitInputs | undefined;
+/** (graph/plan.ts resultsInto) */
 let rowResults: Results | undefined;
 
 /** A message naming the text as typed where the unit layer saw it changed (a decimal comma read as a point). */
@@ -321,8 +323,7 @@ function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome
   try {
     // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position (in one array kept between rows).
     const numbers = rowNumbers.fill(undefined);
-    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed));
-    // This thread's one results object, rewritten for every row: a row's cells are written before the next row is computed.
+    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed), (rowInputs ??= {} as VisitInputs));
     const results = computeResultsInto((rowResults ??= scratchResults()), inputs);
     return { inputs, results, flags: checkVisit(inputs, results, false) }; // only the codes are written
   } catch (err) {
