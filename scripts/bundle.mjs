@@ -13,14 +13,8 @@ const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 // Start clean: chunk names carry content hashes, so old ones would pile up.
 rmSync(join(root, 'dist', 'bundle'), { recursive: true, force: true });
 
-await build({
-  // batch-worker.js is the worker thread of `batch`: a second entry point, so it lands beside
-  // main.js (dist/bundle/batch-worker.js) where the batch command looks for it; model-worker.js
-  // likewise for `scenario --intervals` and `synthetic`.
-  entryPoints: [join(root, 'dist', 'cli', 'main.js'), join(root, 'dist', 'cli', 'batch-worker.js'), join(root, 'dist', 'cli', 'model-worker.js')],
-  outdir: join(root, 'dist', 'bundle'),
+const shared = {
   bundle: true,
-  splitting: true,
   format: 'esm',
   platform: 'node',
   target: 'node20',
@@ -30,6 +24,25 @@ await build({
   external: ['mathjs', 'inquirer', '@inquirer/*', 'chalk', 'dcmjs'],
   // commander is CommonJS: give the ES module bundle a require of its own.
   banner: { js: "import { createRequire as __elastimateRequire } from 'node:module'; const require = __elastimateRequire(import.meta.url);" },
+};
+
+await build({
+  ...shared,
+  // model-worker.js is the worker thread of `scenario --intervals` and `synthetic`: a second entry
+  // point, so it lands beside main.js (dist/bundle/model-worker.js) where those commands look for it.
+  entryPoints: [join(root, 'dist', 'cli', 'main.js'), join(root, 'dist', 'cli', 'model-worker.js')],
+  outdir: join(root, 'dist', 'bundle'),
+  splitting: true,
+});
+
+// batch-worker.js, the worker thread of `batch`, is one file of its own beside main.js (where the
+// batch command looks for it): it needs a small part of the code, and one module starts sooner than
+// the score of shared chunks it would otherwise load, while the main thread already computes rows.
+await build({
+  ...shared,
+  entryPoints: [join(root, 'dist', 'cli', 'batch-worker.js')],
+  outdir: join(root, 'dist', 'bundle'),
+  splitting: false,
 });
 
 // A V8 code cache for mathjs's bundle, used when a value carries a unit (see src/units/mathjs-loader.ts).

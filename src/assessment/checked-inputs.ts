@@ -38,6 +38,15 @@ export function dedupe(problems: InputProblem[]): InputProblem[] {
 const REQUIRED_AT: readonly number[] = NUMERIC_FIELDS.flatMap((f, i) => (f.required ? [i] : []));
 const FIELD_INDEX = Object.fromEntries(NUMERIC_FIELDS.map((f, i) => [f.key, i])) as Record<NumericKey, number>;
 
+/** parseFieldValues's means, by registry position (NaN: absent or refused), kept between calls: it runs once per batch row. */
+const fieldMeans = new Float64Array(NUMERIC_FIELDS.length);
+
+/** The mean of a field's readings, null when absent or refused. */
+function meanOf(i: number): number | null {
+  const m = fieldMeans[i]!;
+  return m === m ? m : null;
+}
+
 /**
  * Parse raw inputs whose shape is already known to be right (checkRawShape,
  * or a batch row built cell by cell) into internal units. Throws one
@@ -56,35 +65,38 @@ export function parseCheckedInputs(raw: RawInputs): VisitInputs {
  * `raw`, whose numeric keys are not read. The hot path of a batch (once per
  * row): one pass over the registry, no per-field arrays or closures for
  * single values; the problems and their order are those of the registry.
+ * With `into` (a batch, whose rows are computed and written one at a time),
+ * the inputs are written into that object rather than a new one.
  */
-export function parseFieldValues(given: readonly unknown[], raw: RawInputs): VisitInputs {
+export function parseFieldValues(given: readonly unknown[], raw: RawInputs, into?: VisitInputs): VisitInputs {
   const problems: InputProblem[] = [];
   for (const i of REQUIRED_AT) {
     const f = NUMERIC_FIELDS[i]!;
     if (isAbsent(given[i])) problems.push({ field: f.flag, value: '', reason: 'required', accepted: `${f.label}, ${describeRange(f)}` });
   }
 
-  // Per field (registry order): the mean of its readings in internal units, null when absent or refused.
-  const means: (number | null)[] = new Array<number | null>(NUMERIC_FIELDS.length);
+  // Per field (registry order): the mean of its readings in internal units, NaN when absent or refused.
+  const means = fieldMeans;
   let sbpReadings: number[] | undefined;
   let dbpReadings: number[] | undefined;
   for (let i = 0; i < NUMERIC_FIELDS.length; i++) {
     const f = NUMERIC_FIELDS[i]!;
     const value = given[i];
-    means[i] = null;
+    means[i] = Number.NaN;
     if (isAbsent(value)) continue;
     const list = Array.isArray(value) ? (value as unknown[]) : undefined;
     const count = list ? list.length : 1;
     let sum = 0;
     let accepted = 0;
-    const parsed: number[] | undefined = f.multiple ? [] : undefined;
+    // The readings of a field that takes several, as many slots as readings (no room to grow: one per batch row).
+    const parsed: number[] | undefined = f.multiple ? new Array<number>(count) : undefined;
     for (let j = 0; j < count; j++) {
       const item: unknown = list ? list[j] : value;
       const v = readValue(f, item, problems);
       if (v === null) continue;
       sum += v;
+      if (parsed) parsed[accepted] = v;
       accepted++;
-      parsed?.push(v);
     }
     if (accepted !== count) continue;
     means[i] = sum / count;
@@ -92,7 +104,7 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
     else if (f.key === 'dbp') dbpReadings = parsed;
   }
 
-  const one = (i: number): number | null => means[i] ?? null;
+  const one = meanOf;
   const sbp = one(FIELD_INDEX.sbp);
   const dbp = one(FIELD_INDEX.dbp);
   const edv = one(FIELD_INDEX.edv);
@@ -122,44 +134,45 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs): Vis
   }
   if (problems.length > 0) throw new InputError(dedupe(problems));
 
-  return {
-    sbpReadings: sbpReadings ?? [],
-    dbpReadings: dbpReadings ?? [],
-    sbp: sbp as number,
-    dbp: dbp as number,
-    hr: one(FIELD_INDEX.hr),
-    edv: edv as number,
-    esv: esv as number,
-    ef: one(FIELD_INDEX.ef),
-    sv: one(FIELD_INDEX.sv),
-    lvotDiameter,
-    lvotVti,
-    pep: one(FIELD_INDEX.pep) as number,
-    et: one(FIELD_INDEX.et) as number,
-    height: one(FIELD_INDEX.height),
-    weight: one(FIELD_INDEX.weight),
-    age: one(FIELD_INDEX.age),
-    pesMeasured,
-    edp: one(FIELD_INDEX.edp),
-    eOverEPrime: one(FIELD_INDEX.eOverEPrime),
-    lvids: one(FIELD_INDEX.lvids),
-    pwts: one(FIELD_INDEX.pwts),
-    tapse: one(FIELD_INDEX.tapse),
-    trVelocity: one(FIELD_INDEX.trVelocity),
-    rap: one(FIELD_INDEX.rap),
-    ivc,
-    ivcCollapse,
-    rhythm: raw.rhythm ?? 'sinus',
-    aorticStenosis: raw.aorticStenosis ?? false,
-    aorticRegurgitation: raw.aorticRegurgitation ?? false,
-    mitralRegurgitation: raw.mitralRegurgitation ?? false,
-    outflowObstruction: raw.outflowObstruction ?? false,
-    pesMethod,
-    mapMethod: raw.mapMethod ?? 'third',
-    bsaMethod: raw.bsaMethod ?? 'mosteller',
-    sex: raw.sex ?? null,
-    errors: raw.errors ?? {},
-  };
+  // Every field assigned, in this order (the order of the keys in JSON), whether the object is new or reused.
+  const inputs = into ?? ({} as VisitInputs);
+  inputs.sbpReadings = sbpReadings ?? [];
+  inputs.dbpReadings = dbpReadings ?? [];
+  inputs.sbp = sbp as number;
+  inputs.dbp = dbp as number;
+  inputs.hr = one(FIELD_INDEX.hr);
+  inputs.edv = edv as number;
+  inputs.esv = esv as number;
+  inputs.ef = one(FIELD_INDEX.ef);
+  inputs.sv = one(FIELD_INDEX.sv);
+  inputs.lvotDiameter = lvotDiameter;
+  inputs.lvotVti = lvotVti;
+  inputs.pep = one(FIELD_INDEX.pep) as number;
+  inputs.et = one(FIELD_INDEX.et) as number;
+  inputs.height = one(FIELD_INDEX.height);
+  inputs.weight = one(FIELD_INDEX.weight);
+  inputs.age = one(FIELD_INDEX.age);
+  inputs.pesMeasured = pesMeasured;
+  inputs.edp = one(FIELD_INDEX.edp);
+  inputs.eOverEPrime = one(FIELD_INDEX.eOverEPrime);
+  inputs.lvids = one(FIELD_INDEX.lvids);
+  inputs.pwts = one(FIELD_INDEX.pwts);
+  inputs.tapse = one(FIELD_INDEX.tapse);
+  inputs.trVelocity = one(FIELD_INDEX.trVelocity);
+  inputs.rap = one(FIELD_INDEX.rap);
+  inputs.ivc = ivc;
+  inputs.ivcCollapse = ivcCollapse;
+  inputs.rhythm = raw.rhythm ?? 'sinus';
+  inputs.aorticStenosis = raw.aorticStenosis ?? false;
+  inputs.aorticRegurgitation = raw.aorticRegurgitation ?? false;
+  inputs.mitralRegurgitation = raw.mitralRegurgitation ?? false;
+  inputs.outflowObstruction = raw.outflowObstruction ?? false;
+  inputs.pesMethod = pesMethod;
+  inputs.mapMethod = raw.mapMethod ?? 'third';
+  inputs.bsaMethod = raw.bsaMethod ?? 'mosteller';
+  inputs.sex = raw.sex ?? null;
+  inputs.errors = raw.errors ?? {};
+  return inputs;
 }
 
 /** One reading in internal units, or null after recording why it was refused. */

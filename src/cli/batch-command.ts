@@ -35,6 +35,8 @@ const PARALLEL_FROM_BYTES = 1 << 20;
 const MAX_WORKERS = 3;
 /** Pieces a worker holds at once: enough that it never waits while the main thread computes a piece. */
 const WORKER_DEPTH = 3;
+/** Output written between background flushes to the disk (SafeWrite.flushInBackground). */
+const FLUSH_EVERY_BYTES = 8 << 20;
 /** Pieces computed or under way but not yet written: the bound on memory. */
 const MAX_PENDING = 16;
 
@@ -87,7 +89,6 @@ interface Slot {
 class PieceWorker {
   private readonly worker: Worker;
   private readonly waiting = new Map<number, { ok: (c: Computed) => void; fail: (e: Error) => void }>();
-  private ready = false;
   private hasHeader = false;
   /** Why the worker stopped, if it did: the run fails with it. */
   failure: Error | undefined;
@@ -96,11 +97,7 @@ class PieceWorker {
     // Beside this module: dist/cli/batch-worker.js, or dist/bundle/batch-worker.js in the bundle.
     // No inherited Node options: `--input-type`, `--eval` and the like would stop a worker from a file.
     this.worker = new Worker(new URL('./batch-worker.js', import.meta.url), { execArgv: [] });
-    this.worker.on('message', (m: PieceReply | 'ready') => {
-      if (m === 'ready') {
-        this.ready = true;
-        return;
-      }
+    this.worker.on('message', (m: PieceReply) => {
       const w = this.waiting.get(m.seq);
       this.waiting.delete(m.seq);
       w?.ok({ bytes: m.bytes, rows: m.rows, failed: m.failed });
@@ -111,7 +108,6 @@ class PieceWorker {
 
   private stop(err: Error): void {
     this.failure ??= err;
-    this.ready = false;
     for (const w of this.waiting.values()) w.fail(this.failure);
     this.waiting.clear();
   }
@@ -122,9 +118,12 @@ class PieceWorker {
     this.hasHeader = true;
   }
 
-  /** Started, told the header, healthy and holding fewer pieces than WORKER_DEPTH. */
+  /**
+   * Told the header, healthy and holding fewer pieces than WORKER_DEPTH. A worker still starting up
+   * has room: its messages wait for it, so it begins on its first piece as soon as it is up.
+   */
   hasRoom(): boolean {
-    return this.ready && this.hasHeader && this.failure === undefined && this.waiting.size < WORKER_DEPTH;
+    return this.hasHeader && this.failure === undefined && this.waiting.size < WORKER_DEPTH;
   }
 
   run(seq: number, text: string): Promise<Computed> {
@@ -150,7 +149,7 @@ function workerCount(sizeBytes: number): number {
  * The whole run against an opened input and output; returns the counts.
  * Pieces are written in input order whichever thread computed them.
  */
-async function streamRows(inPath: string, input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number) => void): Promise<BatchCounts & { header: boolean }> {
+async function streamRows(inPath: string, input: AsyncIterable<string>, output: Writable, workers: number, onProgress: (rows: number, bytes: number) => void): Promise<BatchCounts & { header: boolean }> {
   const splitter = new RecordSplitter();
   let sheet: BatchSheet | undefined; // this thread's: reads the header, and computes pieces no worker has room for
   // Started before the first read, so they load while this thread reads the header and the first rows.
@@ -169,7 +168,7 @@ async function streamRows(inPath: string, input: AsyncIterable<string>, output: 
     failed += done.failed;
     await write(output, done.bytes);
     written += done.rows;
-    onProgress(written);
+    onProgress(written, done.bytes.length);
   };
 
   const here = (compute: (s: BatchSheet) => Uint8Array) => {
@@ -250,14 +249,22 @@ export async function runBatch(inPath: string, opts: Record<string, unknown>): P
 
   let counts: BatchCounts & { header: boolean };
   try {
-    counts = await streamRows(inPath, input.chunks, output, workers, (rows) => {
+    let unflushed = 0;
+    counts = await streamRows(inPath, input.chunks, output, workers, (rows, bytes) => {
       if (showProgress) process.stderr.write(`\relastimate: ${rows} rows…`);
+      // Long outputs go to the disk while rows are computed, so the fsync before the rename has less to do.
+      unflushed += bytes;
+      if (safe && unflushed >= FLUSH_EVERY_BYTES) {
+        unflushed = 0;
+        safe.flushInBackground();
+      }
     });
     if (!counts.header) {
       throw new InputError({ field: 'batch file', value: showValue(inPath), reason: 'empty', accepted: 'a CSV file with a header row and one row per visit (docs/batch.md)' });
     }
     if (safe) {
       await finish(output);
+      await safe.flushed();
       if (outputFailure) throw outputFailure;
       safe.commit();
     }

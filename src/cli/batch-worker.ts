@@ -46,5 +46,4 @@ if (port) {
     const reply: PieceReply = { seq: m.seq, bytes, rows: sheet.rows - rows, failed: sheet.failed - failed };
     port.postMessage(reply, [bytes.buffer as ArrayBuffer]);
   });
-  port.postMessage('ready');
 }

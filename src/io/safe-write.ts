@@ -35,6 +35,8 @@ export interface SafeWriteFs {
   openSync(path: string, flags: number, mode: number): number;
   writeSync(fd: number, buffer: Uint8Array, offset: number, length: number): number;
   fsyncSync(fd: number): void;
+  /** fdatasync in the background (the thread pool): `done` gets its error, or null. */
+  fdatasync(fd: number, done: (err: Error | null) => void): void;
   fchmodSync(fd: number, mode: number): void;
   fchownSync(fd: number, uid: number, gid: number): void;
   closeSync(fd: number): void;
@@ -50,6 +52,7 @@ export const nodeSafeWriteFs: SafeWriteFs = {
   openSync: (p, f, m) => nodeFs.openSync(p, f, m),
   writeSync: (fd, b, o, l) => nodeFs.writeSync(fd, b, o, l),
   fsyncSync: (fd) => nodeFs.fsyncSync(fd),
+  fdatasync: (fd, done) => nodeFs.fdatasync(fd, done),
   fchmodSync: (fd, m) => nodeFs.fchmodSync(fd, m),
   fchownSync: (fd, u, g) => nodeFs.fchownSync(fd, u, g),
   closeSync: (fd) => nodeFs.closeSync(fd),
@@ -287,6 +290,9 @@ export class SafeWrite {
   /** Whether the target existed when the write began (for the wording of a failure). */
   readonly existed: boolean;
   private open = true;
+  /** A background flush under way (flushInBackground), and the first that failed. */
+  private flushing: Promise<void> | undefined;
+  private flushFailure: Error | undefined;
 
   /** Use beginSafeWrite. */
   constructor(target: string, shown: string, options: SafeWriteOptions) {
@@ -339,6 +345,31 @@ export class SafeWrite {
     }
   }
 
+  /**
+   * Start writing what has been written so far out to the disk in the
+   * background (fdatasync on the thread pool), so that commit's fsync has
+   * only the rest to do: for a long write, such as a batch's output, made
+   * while the tool computes. Nothing happens while one is under way. A
+   * failure is kept: commit reports it and leaves the target as it was.
+   * Wait for `flushed` before commit.
+   */
+  flushInBackground(): void {
+    if (!this.open || this.flushing) return;
+    let done!: () => void;
+    const flushing = new Promise<void>((settle) => (done = settle));
+    this.flushing = flushing;
+    this.fs.fdatasync(this.fd, (err) => {
+      if (err) this.flushFailure ??= err;
+      if (this.flushing === flushing) this.flushing = undefined;
+      done();
+    });
+  }
+
+  /** Settles when no background flush is under way. */
+  flushed(): Promise<void> {
+    return this.flushing ?? Promise.resolve();
+  }
+
   /** Flush, close and rename over the target; then fsync the folder and clear stale temporary files. */
   commit(): void {
     this.finish(() => {
@@ -372,8 +403,11 @@ export class SafeWrite {
 
   /** fsync and close the temporary file, then `place` it; on failure or refusal (false) it is removed. */
   private finish(place: () => boolean): boolean {
+    // The descriptor must not close under a flush on the thread pool.
+    if (this.flushing) throw new Error('safe write: finished while a background flush is under way (await flushed() first)');
     let placed: boolean;
     try {
+      if (this.flushFailure) throw this.flushFailure;
       this.fs.fsyncSync(this.fd);
       this.closeFd();
       placed = place();

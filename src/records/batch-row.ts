@@ -1,16 +1,17 @@
 /**
  * One row of a cohort spreadsheet → raw inputs → results, for `elastimate
  * batch` (docs/batch.md). Pure and lean: per row it builds the raw inputs
- * from the recognised cells, runs the same parseInputs and computeResults as
- * `assess` (the numbers equal assess's `results`), the same checks, and
- * formats the cells. mathjs loads only if a cell carries a unit.
+ * from the recognised cells, runs the same parseInputs and graph evaluation as
+ * `assess` (the numbers equal assess's `results`; written into one results
+ * object per thread, not a new one per row), the same checks, and formats
+ * the cells. mathjs loads only if a cell carries a unit.
  *
  * Columns are recognised by name, ignoring case and punctuation, so `lvot-vti`,
  * `lvotVti` and `LVOT_VTI` are one column. Everything else passes through.
  */
 import { dsvFormat } from 'd3-dsv';
 import { checkVisit } from '../assessment/checks.js';
-import { computeResults } from '../assessment/graph/index.js';
+import { computeResultsInto, scratchResults } from '../assessment/graph/index.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
@@ -224,6 +225,13 @@ function numericText(text: string, unit: string, decimalComma: boolean, typed: M
 }
 
 /**
+ * A row's cell as read: its text or, from a line read whole (BatchSheet
+ * plainPiece), the value of a bare number in a numeric column whose header
+ * gives no unit: what readCells would make of that text.
+ */
+type ReadCell = string | number;
+
+/**
  * Read one row's cells; empty cells and missing-value marks are absent. The
  * numeric inputs go into `numbers` by registry position (NUMERIC_FIELDS
  * order: the text as entered, or a list of readings), every other input into
@@ -233,12 +241,17 @@ function numericText(text: string, unit: string, decimalComma: boolean, typed: M
  * the right shape. Several readings of one input are separated by `;` (not in
  * semicolon files), `|`, or spaces between plain numbers.
  */
-function readCells(layout: BatchLayout, cells: readonly string[], numbers: unknown[], checkShape: boolean, typed?: Map<string, string>): RawInputs {
+function readCells(layout: BatchLayout, cells: readonly ReadCell[], numbers: unknown[], checkShape: boolean, typed?: Map<string, string>): RawInputs {
   const raw: Record<string, unknown> = {};
   const decimalComma = layout.dialect.decimalComma;
   let badLists: number[] | undefined;
   for (const { index, column, unit } of layout.recognised) {
-    const cell = (cells[index] ?? '').trim();
+    const read = cells[index];
+    if (typeof read === 'number') {
+      numbers[(column as { field: number }).field] = read;
+      continue;
+    }
+    const cell = (read ?? '').trim();
     if (isMissingMark(cell)) continue;
     switch (column.kind) {
       case 'number': {
@@ -282,6 +295,14 @@ function trailingCount(layout: BatchLayout): number {
 /** What one row gives: its inputs as used, results and flags, or why it could not be computed. */
 type RowOutcome = { inputs: VisitInputs; results: Results; flags: Flag[]; error?: undefined } | { error: string };
 
+/** computeRow's numeric inputs by registry position, kept between rows. */
+const rowNumbers = new Array<unknown>(NUMERIC_FIELDS.length).fill(undefined);
+
+/** The inputs and results of the row computeRow computed last, rewritten for every row: a row's cells are written before the next row is computed. */
+let rowInputs: VisitInputs | undefined;
+/** (graph/plan.ts resultsInto) */
+let rowResults: Results | undefined;
+
 /** A message naming the text as typed where the unit layer saw it changed (a decimal comma read as a point). */
 function asTyped(err: InputError, typed: Map<string, string>): string {
   return err.problems.map((p) => describeProblem({ ...p, value: typed.get(p.value) ?? p.value })).join('; ');
@@ -293,17 +314,17 @@ function asTyped(err: InputError, typed: Map<string, string>): string {
  * parseFieldValues), computeResults and checkVisit. Never throws for bad
  * input: the reason (one line) comes back instead.
  */
-function computeRow(layout: BatchLayout, cells: readonly string[]): RowOutcome {
+function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome {
   const width = layout.header.length;
-  if (cells.length > width && cells.slice(width).some((c) => c.trim() !== '')) {
+  if (cells.length > width && cells.slice(width).some((c) => typeof c !== 'string' || c.trim() !== '')) {
     return { error: `row has ${cells.length} cells but the header has ${width}; extra cells: ${cells.slice(width).map(showValue).join(', ')}` };
   }
   const typed = layout.dialect.decimalComma ? new Map<string, string>() : undefined;
   try {
-    // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position.
-    const numbers = new Array<unknown>(NUMERIC_FIELDS.length);
-    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed));
-    const results = computeResults(inputs);
+    // parseInputs(rawFromCells(layout, cells)), with the numbers passed by position (in one array kept between rows).
+    const numbers = rowNumbers.fill(undefined);
+    const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed), (rowInputs ??= {} as VisitInputs));
+    const results = computeResultsInto((rowResults ??= scratchResults()), inputs);
     return { inputs, results, flags: checkVisit(inputs, results, false) }; // only the codes are written
   } catch (err) {
     if (err instanceof InputError) return { error: typed?.size ? asTyped(err, typed) : err.message.split('\n').join('; ') };
@@ -374,6 +395,11 @@ function usedWriter(layout: BatchLayout): UsedWriter {
 
 function writeRow(out: CsvBytes, layout: BatchLayout, cells: readonly string[], row: RowOutcome, writeUsed: UsedWriter): void {
   out.cells(cells, layout.header.length);
+  writeTrailing(out, layout, row, writeUsed);
+}
+
+/** What follows a row's input cells: the inputs as used, results, flags, reasons, methods version and error, then the line end. */
+function writeTrailing(out: CsvBytes, layout: BatchLayout, row: RowOutcome, writeUsed: UsedWriter): void {
   if (row.error !== undefined) {
     for (let i = trailingCount(layout) - 2; i > 0; i--) out.comma();
     out.comma();
@@ -413,6 +439,11 @@ export class BatchSheet {
   private readonly parser: ReturnType<typeof dsvFormat>;
   /** The layout's inputs-as-used writer, made at the first row. */
   private writeUsed: UsedWriter | undefined;
+  /** plainPiece's scratch: cell starts of a line, its cells (only those read are set), the positions read. */
+  private starts: Int32Array | undefined;
+  private lineCells: ReadCell[] | undefined;
+  private readAt: Int32Array | undefined;
+  private readAsNumber: Uint8Array | undefined;
 
   constructor(layout?: BatchLayout, dialect: Dialect = layout?.dialect ?? COMMA) {
     this.layout = layout;
@@ -422,11 +453,75 @@ export class BatchSheet {
 
   /** The output (UTF-8 CSV, CRLF line ends) of the complete records in `text`; the header line comes first, once. */
   piece(text: string): Uint8Array {
-    this.parser.parseRows(text, (cells) => {
-      this.record(cells);
-      return null; // keep nothing
-    });
+    const layout = this.layout;
+    if (layout !== undefined && text.indexOf('"') === -1) this.plainPiece(layout, text);
+    else {
+      this.parser.parseRows(text, (cells) => {
+        this.record(cells);
+        return null; // keep nothing
+      });
+    }
     return this.out.take();
+  }
+
+  /**
+   * A piece without a double quote, after the header: its records as d3-dsv's
+   * parseRows reads such text (a record ends at LF, CRLF or a lone CR; a line
+   * break at the end of the piece ends the last record; an empty line is no
+   * record) and the same output. A line with as many cells as the header,
+   * each plain, is copied whole as it is read (CsvBytes.plainLine); of its
+   * cells only those the computation reads are read, a bare number in a
+   * numeric column straight into its value, the rest as strings (and the
+   * whole row as strings again when it has an error, whose message quotes
+   * the cells as typed); any other line goes to record() as its cells.
+   */
+  private plainPiece(layout: BatchLayout, text: string): void {
+    const width = layout.header.length;
+    const starts = (this.starts ??= new Int32Array(width + 1));
+    const cells = (this.lineCells ??= new Array<ReadCell>(width).fill(''));
+    const read = (this.readAt ??= Int32Array.from(layout.recognised, (r) => r.index));
+    // The columns whose bare numbers are read as numbers at once (readCells takes them as they are): those
+    // without a unit in the header. (A bare number has no comma, so a decimal-comma file reads it alike.)
+    const numeric = (this.readAsNumber ??= Uint8Array.from(layout.recognised, (r) => (r.column.kind === 'number' && r.unit === '' ? 1 : 0)));
+    const sep = this.dialect.separator.charCodeAt(0);
+    const writeUsed = (this.writeUsed ??= usedWriter(layout));
+    const out = this.out;
+    let n = text.length;
+    if (text.charCodeAt(n - 1) === 10) n--;
+    if (text.charCodeAt(n - 1) === 13) n--;
+    let i = 0;
+    while (i < n) {
+      const count = out.plainLine(text, i, n, sep, starts);
+      const end = out.lineEnd;
+      if (count === width) {
+        let parsed = false;
+        for (let k = 0; k < read.length; k++) {
+          const at = read[k]!;
+          const from = starts[at]!;
+          const to = starts[at + 1]! - 1;
+          if (numeric[k] === 1) {
+            const value = bareNumber(text, from, to);
+            if (value === value) {
+              cells[at] = value;
+              parsed = true;
+              continue;
+            }
+          }
+          cells[at] = text.slice(from, to);
+        }
+        this.rows++;
+        let row = computeRow(layout, cells);
+        if (row.error !== undefined && parsed) {
+          // The message quotes cells as typed: read the row again as text.
+          for (let k = 0; k < read.length; k++) cells[read[k]!] = text.slice(starts[read[k]!]!, starts[read[k]! + 1]! - 1);
+          row = computeRow(layout, cells);
+        }
+        if (row.error !== undefined) this.failed++;
+        writeTrailing(out, layout, row, writeUsed);
+      } else this.record(text.slice(i, end).split(this.dialect.separator)); // an empty line is no record there
+      i = end + 1;
+      if (text.charCodeAt(end) === 13 && text.charCodeAt(i) === 10) i++;
+    }
   }
 
   /** The output of a record whose quotes do not pair up: its line's cells and the reason. */

@@ -118,19 +118,9 @@ function numberText(value: number | null | undefined, decimals: number): string 
   return value < 0 ? `-${digits}` : digits;
 }
 
-/** The digits of a non-negative int32 at `p`, left-padded with zeros to `width`; returns the position after them. */
-function writeDigits(buf: Buffer, p: number, x: number, width: number): number {
-  const n = x < 10 ? 1 : x < 100 ? 2 : x < 1000 ? 3 : x < 1e4 ? 4 : x < 1e5 ? 5 : x < 1e6 ? 6 : x < 1e7 ? 7 : x < 1e8 ? 8 : x < 1e9 ? 9 : 10;
-  for (let i = n; i < width; i++) buf[p++] = 48;
-  const end = p + n;
-  p = end;
-  do {
-    const next = (x / 10) | 0;
-    buf[--p] = 48 + (x - next * 10);
-    x = next;
-  } while (x > 0);
-  return end;
-}
+/** The tens and units digit of 0…99, as bytes: numbers are written two digits at a time. */
+const PAIR_HIGH = Uint8Array.from({ length: 100 }, (_v, i) => 48 + Math.floor(i / 10));
+const PAIR_LOW = Uint8Array.from({ length: 100 }, (_v, i) => 48 + (i % 10));
 
 /**
  * CSV written straight into UTF-8 bytes, for `batch`, whose output is a
@@ -183,6 +173,48 @@ export class CsvBytes {
     this.pos = start + this.buf.write(t, start, 'utf8');
   }
 
+  /** Where the last plainLine stopped: the LF or CR that ends the line, or the end of the text. */
+  lineEnd = 0;
+
+  /**
+   * One line of text without a double quote, from `start` up to the next LF
+   * or CR (or `end`), its cells separated by `sep`. When it has exactly
+   * `starts.length - 1` cells and each is one that text() copies as it is
+   * (printable ASCII, no comma, not beginning like a formula), the line is
+   * written exactly as cells() writes its cells, in one pass, the start of
+   * cell k goes into starts[k] and one past the line's end into
+   * starts[count], and the count comes back. Otherwise nothing is written
+   * and the answer is -1. Either way lineEnd is set.
+   */
+  plainLine(text: string, start: number, end: number, sep: number, starts: Int32Array): number {
+    this.room(end - start);
+    const buf = this.buf;
+    let p = this.pos;
+    let plain = true;
+    let count = 0;
+    let cellStart = true;
+    let i = start;
+    starts[0] = start;
+    for (; i < end; i++) {
+      const c = text.charCodeAt(i);
+      if (c === sep) {
+        buf[p++] = 44;
+        if (++count < starts.length) starts[count] = i + 1;
+        cellStart = true;
+        continue;
+      }
+      if (c === 10 || c === 13) break;
+      if (c < 0x20 || c >= 0x7f || c === 44 || c === 34 || (cellStart && FORMULA_START[c] === 1)) plain = false;
+      buf[p++] = c;
+      cellStart = false;
+    }
+    this.lineEnd = i;
+    if (!plain || ++count !== starts.length - 1) return -1;
+    starts[count] = i + 1;
+    this.pos = p;
+    return count;
+  }
+
   /** The first `width` cells (missing ones empty), as text cells separated by commas. */
   cells(cells: readonly string[], width: number): void {
     for (let i = 0; i < width; i++) {
@@ -221,36 +253,67 @@ export class CsvBytes {
 
   private numberWith(value: number | null | undefined, decimals: number): void {
     if (value === null || value === undefined) return;
-    const scale = SCALE[decimals]!;
-    const scaled = Math.round(Math.abs(value) * scale);
-    if (!(scaled < 2147483648)) {
+    const y = Math.abs(value) * SCALE[decimals]!;
+    if (!(y < 2147483647)) {
       // Large or not finite (rare): as csvNumber writes it.
       const text = numberText(value, decimals);
       if (text !== '') this.text(text);
       return;
     }
-    // The usual case: the digits come from int32 arithmetic.
+    // The usual case: Math.round(y) from int32 arithmetic. Truncating y + 0.5 is that rounding, except
+    // where the sum itself rounds up to the next whole number (y just below a half, as 0.49999999999999994):
+    // then x - 0.5, exact for any int32, lies above y, and x is one too many.
+    let x = (y + 0.5) | 0;
+    if (x - 0.5 > y) x--;
     this.room(24);
     const buf = this.buf;
     let p = this.pos;
-    if (scaled === 0) {
-      buf[p++] = 48;
-    } else {
-      if (value < 0) buf[p++] = 45;
-      const whole = (scaled / scale) | 0;
-      p = writeDigits(buf, p, whole, 0);
-      let part = (scaled - whole * scale) | 0;
-      if (part !== 0) {
-        let d = decimals;
-        while (part % 10 === 0) {
-          part = (part / 10) | 0;
-          d--;
-        }
-        buf[p++] = 46;
-        p = writeDigits(buf, p, part, d);
-      }
+    if (x === 0) {
+      buf[p] = 48;
+      this.pos = p + 1;
+      return;
     }
-    this.pos = p;
+    if (value < 0) buf[p++] = 45;
+    // Trailing zeros of the decimals dropped, then the digits written from the right, two at a time.
+    let d = decimals;
+    while (d > 0) {
+      const t = (x / 10) | 0;
+      if (x !== t * 10) break;
+      x = t;
+      d--;
+    }
+    const n = x < 10 ? 1 : x < 100 ? 2 : x < 1000 ? 3 : x < 1e4 ? 4 : x < 1e5 ? 5 : x < 1e6 ? 6 : x < 1e7 ? 7 : x < 1e8 ? 8 : x < 1e9 ? 9 : 10;
+    const end = p + (n > d ? n - d : 1) + (d > 0 ? d + 1 : 0);
+    let q = end;
+    if (d > 0) {
+      let k = d;
+      for (; k >= 2; k -= 2) {
+        const t = (x / 100) | 0;
+        const r = x - t * 100;
+        buf[--q] = PAIR_LOW[r]!;
+        buf[--q] = PAIR_HIGH[r]!;
+        x = t;
+      }
+      if (k === 1) {
+        const t = (x / 10) | 0;
+        buf[--q] = 48 + (x - t * 10);
+        x = t;
+      }
+      buf[--q] = 46;
+    }
+    while (x >= 100) {
+      const t = (x / 100) | 0;
+      const r = x - t * 100;
+      buf[--q] = PAIR_LOW[r]!;
+      buf[--q] = PAIR_HIGH[r]!;
+      x = t;
+    }
+    if (x >= 10) {
+      buf[--q] = PAIR_LOW[x]!;
+      buf[--q] = PAIR_HIGH[x]!;
+    } else if (q > p) buf[--q] = 48 + x;
+    while (q > p) buf[--q] = 48; // the zero before the point of a value below one
+    this.pos = end;
   }
 
   /** resultCells(r), each preceded by a comma. */

@@ -42,12 +42,13 @@ const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12,
  * with at most 15 digits and no exponent, the digits as a whole number m and
  * the k digits after the point give m / 10^k, one correctly rounded division
  * of two exact doubles, which is Number(text) exactly (Clinger's fast path);
- * anything longer goes to Number itself.
+ * anything longer goes to Number itself. With `start` and `end`, the text
+ * read is text.slice(start, end), without making that string.
  */
-export function bareNumber(text: string): number {
-  const n = text.length;
-  let i = 0;
-  let c = n > 0 ? text.charCodeAt(0) : 0;
+export function bareNumber(text: string, start = 0, end = text.length): number {
+  const n = end;
+  let i = start;
+  let c = i < n ? text.charCodeAt(i) : 0;
   const negative = c === 45;
   if (c === 43 || c === 45) c = ++i < n ? text.charCodeAt(i) : 0; // + or -
   let digits = 0;
@@ -73,12 +74,12 @@ export function bareNumber(text: string): number {
     // e or E, an optional sign, then at least one digit
     c = ++i < n ? text.charCodeAt(i) : 0;
     if (c === 43 || c === 45) c = ++i < n ? text.charCodeAt(i) : 0;
-    const start = i;
+    const exponent = i;
     while (c >= 48 && c <= 57) c = ++i < n ? text.charCodeAt(i) : 0;
-    return i === start || i !== n ? NaN : Number(text);
+    return i === exponent || i !== n ? NaN : Number(start === 0 && n === text.length ? text : text.slice(start, n));
   }
   if (i !== n) return NaN;
-  if (digits > 15) return Number(text);
+  if (digits > 15) return Number(start === 0 && n === text.length ? text : text.slice(start, n));
   const value = decimals === 0 ? m : m / POW10[decimals]!;
   return negative ? -value : value;
 }

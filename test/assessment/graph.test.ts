@@ -8,7 +8,7 @@
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { ERROR_INPUT_KEYS, type ErrorInputKey } from '../../src/assessment/error-model.js';
-import { RESULT_KEYS, computeResults, visitPlan, type ResultKey } from '../../src/assessment/graph/index.js';
+import { RESULT_KEYS, computeResults, computeResultsInto, scratchResults, visitPlan, type ResultKey } from '../../src/assessment/graph/index.js';
 import { GRAPH_INPUT_KEYS } from '../../src/assessment/graph/inputs.js';
 import { inputsOf, keyOfSlot, slotOf, type Plan } from '../../src/assessment/graph/plan.js';
 import { NODES, graphProblems } from '../../src/assessment/graph/registry.js';
@@ -203,3 +203,23 @@ describe('reasons come from the edges', () => {
     expect(volumetric.pes.value).toBeCloseTo(135, 10);
   });
 });
+
+describe('one results object rewritten per visit (a batch row) against a new one per visit (self-consistency of two packagings of one evaluation)', () => {
+  it('gives the same value, unit, method and reason for every result, visit after visit, whatever was computed before', () => {
+    const visits = [BASE, WITH_SV, WITH_LVOT, MEASURED_PES, RIGHT_HEART, IVC_NEAR_DIAMETER_EDGE, IVC_NEAR_COLLAPSE_EDGE, { sbp: 120, dbp: 80, edv: 120, esv: 50, pep: 90, et: 290 }];
+    const target = scratchResults();
+    // Every visit after every other, so that a field left over from the visit before would show.
+    for (const before of visits) for (const visit of visits) {
+      computeResultsInto(target, parseInputs(before));
+      const inputs = parseInputs(visit);
+      const into = computeResultsInto(target, inputs);
+      const fresh = computeResults(inputs);
+      expect(Object.keys(into)).toEqual(RESULT_KEYS);
+      for (const key of RESULT_KEYS) {
+        const { value, unit, method, reason } = into[key];
+        expect({ value, unit, method, reason }, key).toEqual({ value: fresh[key].value, unit: fresh[key].unit, method: fresh[key].method, reason: fresh[key].reason });
+      }
+    }
+  });
+});
+

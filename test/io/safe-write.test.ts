@@ -127,6 +127,42 @@ describe('writeNewFileSafely (backups)', () => {
 });
 
 describe('SafeWrite', () => {
+  it('a background flush (fdatasync) goes before the fsync of commit, and the file is whole', async () => {
+    const target = join(dir, 'flushed.txt');
+    const { fs, calls } = recorder();
+    const w = beginSafeWrite(target, { option: '--out', fs });
+    w.write('first half, ');
+    w.flushInBackground();
+    w.flushInBackground(); // one at a time: this one is ignored
+    w.write('second half');
+    expect(() => w.commit()).toThrow(/background flush/); // not while the flush is under way
+    await w.flushed();
+    w.commit();
+    expect(readFileSync(target, 'utf8')).toBe('first half, second half');
+    expect(writes(calls)).toEqual(['openSync', 'fchmodSync', 'writeSync', 'fdatasync', 'writeSync', 'fsyncSync', 'closeSync', 'renameSync', 'openSync', 'fsyncSync', 'closeSync']);
+  });
+
+  it('a background flush that failed fails commit: a FileFault naming the file and the cause, the target unchanged, no temporary file', async () => {
+    const target = join(dir, 'flush-failed.txt');
+    writeFileSync(target, 'as it was');
+    const fs: SafeWriteFs = { ...nodeSafeWriteFs, fdatasync: (_fd, done) => done(Object.assign(new Error('fdatasync failed'), { code: 'EIO' })) };
+    const w = beginSafeWrite(target, { option: '--out', fs });
+    w.write('new');
+    w.flushInBackground();
+    await w.flushed();
+    let caught: unknown;
+    try {
+      w.commit();
+    } catch (err) {
+      caught = err;
+    }
+    expect(caught).toBeInstanceOf(FileFault);
+    expect((caught as FileFault).message).toContain(target);
+    expect((caught as FileFault).message).toContain('the file was left as it was');
+    expect(readFileSync(target, 'utf8')).toBe('as it was');
+    expect(readdirSync(dir).filter((f) => f.includes('elastimate-tmp'))).toEqual([]);
+  });
+
   it('abort removes the temporary file and leaves the target as it was', () => {
     const target = join(dir, 'c.txt');
     writeFileSync(target, 'kept');

@@ -9,6 +9,7 @@
  */
 import { parse } from 'csv-parse/sync';
 import { stringify } from 'csv-stringify/sync';
+import { dsvFormat } from 'd3-dsv';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
@@ -18,7 +19,7 @@ import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { InputError } from '../../src/errors.js';
 import { BatchSheet, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
-import { RecordSplitter, type Segment } from '../../src/records/csv-records.js';
+import { RecordSplitter, type Dialect, type Segment } from '../../src/records/csv-records.js';
 import { CsvBytes, csvNumber, csvText, flagCell, guardCell, notComputableCell } from '../../src/render/csv.js';
 import { bareNumber } from '../../src/units/quantity.js';
 
@@ -179,6 +180,65 @@ describe('BatchSheet bytes', () => {
     );
   });
 
+  it('of pieces without a double quote (each line copied whole where it can be) equal csvText of batchRow for every separator, line end and odd cell', () => {
+    // The line-copy path (BatchSheet.plainPiece, CsvBytes.plainLine) against the cell-by-cell one: d3-dsv's
+    // parseRows reads the whole text into rows, and batchRow of each row, written by csvText, is what the
+    // sheet must write, whatever the pieces the splitter cuts.
+    const dialects: Dialect[] = [
+      { separator: ',', decimalComma: false },
+      { separator: ';', decimalComma: true },
+      { separator: '\t', decimalComma: false },
+    ];
+    // Cells that text() does not copy as they are (formula-like, control characters, non-ASCII, a comma), and plain ones.
+    const odd = fc.constantFrom('=1+1', '-x', '+', '@a', '\tx', 'x\u0007y', 'é', '1,5', '-2.5', '', ' ', '~', '=', 'ok');
+    const lineEnd = fc.constantFrom('\n', '\r\n', '\r');
+    const line = fc.tuple(row, fc.array(fc.tuple(fc.nat(40), odd), { maxLength: 1 }), lineEnd, fc.boolean(), fc.boolean());
+    let plainRows = 0;
+    let otherRows = 0;
+    fc.assert(
+      fc.property(fc.constantFrom(...dialects), fc.array(line, { maxLength: 30 }), fc.array(fc.integer({ min: 1, max: 3000 }), { minLength: 1, maxLength: 6 }), fc.boolean(), (dialect, lines, cuts, endsWithBreak) => {
+        const sep = dialect.separator;
+        let body = '';
+        lines.forEach(([cells, oddCells, end, blank, tidy], k) => {
+          const own = cells.map((c) => c.replace(/["\r\n]/g, ' '));
+          // As most cohort files are: a plain id and note.
+          if (tidy) own.forEach((c, i) => (own[i] = i === 0 ? `S-${k}` : i === 22 ? 'note' : c));
+          for (const [at, v] of oddCells) own[at % Math.max(1, own.length)] = v;
+          body += own.join(sep);
+          if (k < lines.length - 1 || endsWithBreak) body += blank ? end + end : end;
+        });
+        const input = `${HEADER.join(sep)}\n${body}`;
+        const splitter = new RecordSplitter();
+        let sheet: BatchSheet | undefined;
+        const parts: string[] = [];
+        const take = (segments: Segment[]) => {
+          for (const segment of segments) {
+            sheet ??= new BatchSheet(undefined, splitter.dialect);
+            parts.push(decoder.decode(segment.bad ? sheet.bad(segment.bad) : sheet.piece(segment.text)));
+          }
+        };
+        for (let at = 0, k = 0; at < input.length; k++) {
+          const size = cuts[k % cuts.length]!;
+          take(splitter.push(input.slice(at, at + size)));
+          at += size;
+        }
+        take(splitter.end());
+        const wanted = planBatch(HEADER, dialect);
+        const kept = dsvFormat(sep).parseRows(input).slice(1).filter((r) => !(r.length === 1 && r[0] === ''));
+        for (const r of kept) {
+          if (r.length === HEADER.length && r.every((c) => /^[\x20-\x7e]*$/.test(c) && !c.includes(',') && !/^[=+\-@]/.test(c))) plainRows++;
+          else otherRows++;
+        }
+        expect(parts.join('')).toBe(csvText([wanted.outputHeader, ...kept.map((r) => batchRow(wanted, r))]));
+        expect(sheet?.rows ?? 0).toBe(kept.length);
+      }),
+      { numRuns: 150 },
+    );
+    // Both paths were taken, many times.
+    expect(plainRows).toBeGreaterThan(200);
+    expect(otherRows).toBeGreaterThan(200);
+  });
+
   it('write numbers exactly as csvNumber does, whatever the value and unit', () => {
     const units = ['mmHg', 'mL', '%', 'L/min', 'm²', 'WU', 'dyn·s·cm⁻⁵', 'mL/mmHg', 'mmHg/mL', 'mmHg·m²/mL', '', 'J', 'unknown'];
     const out = new CsvBytes(16);
@@ -186,7 +246,7 @@ describe('BatchSheet bytes', () => {
       fc.double(),
       fc.double({ min: -2000, max: 2000 }),
       fc.integer({ min: -1e6, max: 1e6 }).map((n) => n / 1000),
-      fc.constantFrom(0, -0, 0.05, 0.5, 1.005, 2.675, 4.9999e-6, 99999.999995, 2 ** 31 / 100, 2 ** 53 / 1e5, 1e300, Number.NaN),
+      fc.constantFrom(0, -0, 0.05, 0.5, 1.005, 2.675, 4.9999e-6, 99999.999995, 2 ** 31 / 100, 2 ** 53 / 1e5, 1e300, Number.NaN, 0.49999999999999994, -0.49999999999999994, 0.0049999999999999994, 1.4999999999999998, 2147483646.5, 2147483647, 21474836.47, 2 ** 31 - 0.5),
     );
     fc.assert(
       fc.property(value, fc.constantFrom(...units), (v, unit) => {
@@ -222,5 +282,18 @@ describe('bare numbers', () => {
     const cases = ['', '120', '-0', '-0.0', '+0', '0.1', '0.3', '-0.5', '.5', '5.', '1e3', '1E-3', '+7', 'e3', '.', '1e', '1e+', '0x10', 'Infinity',
       '123456789012345', '1234567890123456', '0.000000000000001', '9007199254740993', '000000000000000001.5', '99.99999999999999'];
     for (const s of cases) expect(Object.is(bareNumber(s), reference(s)), s).toBe(true);
+  });
+
+  it('read from a range of a longer text exactly as from that range cut out', () => {
+    const chars = fc.constantFrom('0', '1', '7', '9', '.', '+', '-', 'e', 'E', ' ', 'x', ',', '\n');
+    const text = fc.oneof(fc.array(chars, { maxLength: 30 }).map((cs) => cs.join('')), fc.array(fc.double().map(String), { maxLength: 4 }).map((xs) => xs.join(',')));
+    fc.assert(
+      fc.property(text, fc.nat(), fc.nat(), (s, a, b) => {
+        const start = s.length === 0 ? 0 : a % (s.length + 1);
+        const end = start + (b % (s.length - start + 1));
+        expect(Object.is(bareNumber(s, start, end), reference(s.slice(start, end))), JSON.stringify([s, start, end])).toBe(true);
+      }),
+      { numRuns: 20000 },
+    );
   });
 });

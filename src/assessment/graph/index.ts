@@ -6,7 +6,9 @@
  */
 import type { PesMethod } from '../fields.js';
 import type { VisitInputs } from '../inputs.js';
-import { planForInputs, resultsFor, type Plan, type Results } from './plan.js';
+import { planForInputs, resultsFor, resultsInto, type Plan, type Results } from './plan.js';
+
+export { scratchResults } from './plan.js';
 import { NODES, type ResultKey } from './registry.js';
 import type { Rule, Selection, StrokeVolumeSource } from './types.js';
 
@@ -43,6 +45,15 @@ export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Resu
   if (choice) return resultsFor(inputs, selectionFor(inputs, choice));
   // The visit's own choices, as visitPlan takes them, in one object: a batch computes a hundred thousand visits.
   return resultsFor(inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod });
+}
+
+/**
+ * computeResults(inputs) written into `target` (from scratchResults), whose
+ * quantities are overwritten: for a batch, which writes each row's results
+ * out before it computes the next row (plan.ts resultsInto).
+ */
+export function computeResultsInto(target: Results, inputs: VisitInputs): Results {
+  return resultsInto(target, inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod });
 }
 
 /** Whether the visit has a Doppler stroke volume (entered, or from LVOT diameter and VTI). */

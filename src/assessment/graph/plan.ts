@@ -251,14 +251,8 @@ const scratchReasons: (string | undefined)[] = new Array<string | undefined>(SLO
 
 /** Every result of a visit's inputs under these choices (planForInputs and resultsOf in one pass over the inputs). */
 export function resultsFor(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Results {
+  const plan = evaluateInputs(inputs, selection);
   const v = scratchValues;
-  const plan = planByCode(planCode(readInputs(inputs, v), selection), () => presentInputs(inputs), selection);
-  v.fill(Number.NaN, INPUT_COUNT);
-  return resultsFrom(plan, v);
-}
-
-function resultsFrom(plan: Plan, v: Float64Array): Results {
-  evaluatePlan(plan, v, scratchReasons);
   const list = scratchQuantities;
   const nodes = plan.nodes;
   for (let i = 0; i < NODE_COUNT; i++) {
@@ -267,6 +261,55 @@ function resultsFrom(plan: Plan, v: Float64Array): Results {
     list[i] = quantity(x - x === 0 ? x : null, p.unit, p.method, scratchReasons[p.slot]);
   }
   return resultsLiteral(list);
+}
+
+/**
+ * A results object for resultsInto: every quantity with all four fields, so
+ * that each has one shape whatever its value.
+ */
+export function scratchResults(): Results {
+  return resultsLiteral(NODES.map((n) => ({ value: null, unit: n.unit, method: undefined, reason: undefined })));
+}
+
+/**
+ * resultsFor written into `target` (from scratchResults), whose quantities
+ * are overwritten in place: the same values, units, methods and reasons
+ * (method and reason undefined where resultsFor leaves them out), without a
+ * new object per result. For a batch, which writes out each row's results
+ * before it computes the next: `target` holds only the latest visit's.
+ */
+export function resultsInto(target: Results, inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Results {
+  const plan = evaluateInputs(inputs, selection);
+  const v = scratchValues;
+  const nodes = plan.nodes;
+  let i = 0;
+  // Walking the target's own keys in their order (RESULT_KEYS, as scratchResults makes it) is much faster
+  // than looking each up by a name that changes with every step.
+  for (const key in target) {
+    const q = target[key as ResultKey];
+    const p = nodes[i++]!;
+    const x = v[p.slot]!;
+    q.unit = p.unit;
+    q.method = p.method;
+    if (x - x === 0) {
+      q.value = x;
+      q.reason = undefined;
+    } else {
+      q.value = null;
+      q.reason = scratchReasons[p.slot] ?? 'not computable';
+    }
+  }
+  if (i !== NODE_COUNT) throw new Error('resultsInto: the target is not from scratchResults');
+  return target;
+}
+
+/** The plan of a visit's inputs under these choices, evaluated into scratchValues and scratchReasons. */
+function evaluateInputs(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
+  const v = scratchValues;
+  const plan = planByCode(planCode(readInputs(inputs, v), selection), () => presentInputs(inputs), selection);
+  v.fill(Number.NaN, INPUT_COUNT);
+  evaluatePlan(plan, v, scratchReasons);
+  return plan;
 }
 
 const scratchQuantities = new Array<Quantity>(NODE_COUNT);
