@@ -64,9 +64,11 @@ export const INPUT_UNITS = {
 /** Serialise with a guard: any non-finite number becomes null. */
 export function stringifySafe(value: unknown, indent = 2): string {
   const text = JSON.stringify(value, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), indent);
-  // JSON.stringify escapes C0 controls but leaves DEL and the C1 controls raw (U+009B is a
-  // one-character CSI on many terminals): written as \u escapes, the same JSON value, nothing raw.
-  return C1_OR_DEL.test(text) ? text.replace(C1_OR_DEL_G, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`) : text;
+  // JSON.stringify escapes C0 controls but leaves DEL, the C1 controls (U+009B is a one-character
+  // CSI on many terminals) and the bidirectional embedding, override and isolate controls (which
+  // reorder what a terminal shows after them; text/sanitize.ts) raw: written as \u escapes, the
+  // same JSON value, nothing raw.
+  return RAW_IN_JSON.test(text) ? text.replace(RAW_IN_JSON_G, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`) : text;
 }
-const C1_OR_DEL = /[\u007f-\u009f]/;
-const C1_OR_DEL_G = /[\u007f-\u009f]/g;
+const RAW_IN_JSON = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+const RAW_IN_JSON_G = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;

@@ -10,7 +10,14 @@
  *   (`␀`, `␇`, `␛`…), so the reader still sees which byte was there;
  * - DEL U+007F → `␡` (U+2421);
  * - C1 controls U+0080–U+009F (U+009B is a one-character CSI on many
- *   terminals) → U+FFFD, Unicode's replacement character (C1 has no pictures).
+ *   terminals) → U+FFFD, Unicode's replacement character (C1 has no pictures);
+ * - the bidirectional embedding, override and isolate controls (U+202A–U+202E,
+ *   U+2066–U+2069; Unicode UAX #9 §2.1–2.4), which make a terminal, a browser
+ *   or a spreadsheet show the characters after them in another order than
+ *   stored (the "Trojan Source" trick, CVE-2021-42574) → U+FFFD. They are
+ *   format characters (category Cf), not controls, but in an id, a note or a
+ *   file name they can only mislead. The marks U+200E and U+200F, which do not
+ *   reorder a run, are kept.
  * Tab, line feed and carriage return are kept when the caller's format
  * handles them itself (`keepWhitespace`: CSV quotes line breaks, HTML and
  * XML treat them as spaces); otherwise they are replaced too.
@@ -25,10 +32,10 @@ export interface SanitizeOptions {
   keepWhitespace?: boolean;
 }
 
-const ALL_CONTROLS = /[\u0000-\u001f\u007f-\u009f]/;
-const ALL_CONTROLS_G = /[\u0000-\u001f\u007f-\u009f]/g;
-const CONTROLS_BUT_WHITESPACE = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
-const CONTROLS_BUT_WHITESPACE_G = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f]/g;
+const ALL_CONTROLS = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+const ALL_CONTROLS_G = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
+const CONTROLS_BUT_WHITESPACE = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+const CONTROLS_BUT_WHITESPACE_G = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
 
 /** The visible stand-in for one control character. */
 export function controlPicture(c: string): string {

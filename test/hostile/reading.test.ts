@@ -25,7 +25,8 @@ const FLAGS = ['--sbp', '130', '--dbp', '80', '--hr', '70', '--edv', '120', '--e
 const MEASURES = { sbp: 130, dbp: 80, hr: 70, edv: 120, esv: 50, pep: 90, et: 290 };
 /** Any C0 control but tab, LF and CR, DEL, or any C1 control. */
 // eslint-disable-next-line no-control-regex
-const RAW_CONTROL = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
+/** A raw control byte (C0 but tab and line breaks, DEL, C1) or a bidirectional embedding, override or isolate control (UAX #9). */
+const RAW_CONTROL = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
 
 let dir: string;
 beforeAll(() => {
@@ -142,7 +143,8 @@ describe('duplicate keys, deep nesting and "__proto__" are errors, never a silen
 });
 
 describe('control characters never reach a screen or a file raw; notes are stored as entered', () => {
-  const NOTE = 'before\u001b[2J\u001b]0;owned\u0007 csi\u009b31m bell\u0007 del\u007f end';
+  // Ends with RIGHT-TO-LEFT OVERRIDE, which would show the rest reversed ("Trojan Source").
+  const NOTE = 'before\u001b[2J\u001b]0;owned\u0007 csi\u009b31m bell\u0007 del\u007f end \u202ereversed';
   let subject: string;
   beforeAll(() => {
     const doc = JSON.parse(readFileSync(SUBJECT, 'utf8'));
@@ -155,7 +157,7 @@ describe('control characters never reach a screen or a file raw; notes are store
   it('record show prints the note with visible stand-ins (␛, ␇, ␡, �), no raw control byte', async () => {
     const run = ok(await runCli(['record', 'show', subject]));
     expect(run.stdout).not.toMatch(RAW_CONTROL);
-    expect(run.stdout).toContain('before␛[2J␛]0;owned␇ csi\ufffd31m bell␇ del␡ end');
+    expect(run.stdout).toContain('before␛[2J␛]0;owned␇ csi\ufffd31m bell␇ del␡ end \ufffdreversed');
     expect(run.stdout).toContain('subject CO-\ufffd2J');
   });
 
@@ -182,7 +184,7 @@ describe('control characters never reach a screen or a file raw; notes are store
   it('export CSV: no raw control byte; the note otherwise as entered', async () => {
     const run = ok(await runCli(['export', subject]));
     expect(run.stdout.replace(/\r\n|\r|\n|\t/g, '')).not.toMatch(RAW_CONTROL);
-    expect(run.stdout).toContain('before␛[2J␛]0;owned␇ csi\ufffd31m bell␇ del␡ end');
+    expect(run.stdout).toContain('before␛[2J␛]0;owned␇ csi\ufffd31m bell␇ del␡ end \ufffdreversed');
   });
 
   it('HTML and Markdown reports: no raw control byte; a lone CR in a note is a space in Markdown, not a heading, code or list', async () => {

@@ -8,23 +8,37 @@
  * followed by a line feed, or a carriage return and a following line feed".
  * The checks also hold the sanitiser against Node's own reading of category
  * Cc (the \p{Cc} property escape of the regular-expression engine, ICU's data).
+ * The bidirectional controls replaced besides are those of Unicode UAX #9
+ * (§2.1 LRE, RLE, PDF, LRO, RLO; §2.4 LRI, RLI, FSI, PDI), the nine that
+ * CVE-2021-42574 ("Trojan Source", Boucher and Anderson 2021) names, each
+ * checked by its Unicode name below.
  */
 import { describe, expect, it } from 'vitest';
 import { escapeMarkdownInline, escapeMarkup, sanitizeText } from '../../src/text/sanitize.js';
 
+/** The nine bidirectional controls of UAX #9, by name: LRE, RLE, PDF, LRO, RLO, LRI, RLI, FSI, PDI. */
+const BIDI_CONTROLS = ['\u202a', '\u202b', '\u202c', '\u202d', '\u202e', '\u2066', '\u2067', '\u2068', '\u2069'];
+
 const every = Array.from({ length: 0x2500 }, (_, i) => String.fromCharCode(i)).filter((c) => !/[\ud800-\udfff]/.test(c));
 
 describe('sanitizeText', () => {
-  it('replaces exactly the characters of Unicode category Cc (as the regex engine\'s \\p{Cc} says), nothing else', () => {
+  it('replaces exactly the characters of Unicode category Cc (as the regex engine\'s \\p{Cc} says) and the bidirectional embedding, override and isolate controls, nothing else', () => {
     for (const c of every) {
       const out = sanitizeText(`a${c}b`);
-      if (/\p{Cc}/u.test(c)) {
+      if (/\p{Cc}/u.test(c) || BIDI_CONTROLS.includes(c)) {
         expect(out, `U+${c.charCodeAt(0).toString(16)}`).not.toContain(c);
         expect(out).not.toMatch(/\p{Cc}/u);
       } else {
         expect(out).toBe(`a${c}b`);
       }
     }
+  });
+
+  it('shows a bidirectional control as U+FFFD, so text after it shows in the order it is stored; the marks LRM and RLM stay', () => {
+    // An id that would show as "S-0042.csv" with its tail reversed by RIGHT-TO-LEFT OVERRIDE.
+    expect(sanitizeText('S-\u202evsc.2400')).toBe('S-\ufffdvsc.2400');
+    expect(sanitizeText('a\u2067b\u2069c', { keepWhitespace: true })).toBe('a\ufffdb\ufffdc');
+    expect(sanitizeText('a\u200eb\u200fc')).toBe('a\u200eb\u200fc');
   });
 
   it('shows C0 as its Control Picture, DEL as ␡ and C1 as U+FFFD', () => {
