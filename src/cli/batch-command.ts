@@ -23,7 +23,7 @@ import { BATCH_FILE, openInputStream } from '../io/read-input.js';
 import { info } from './messages.js';
 import { beginSafeWrite, checkOutputPath, writeFault, type SafeWrite } from '../io/safe-write.js';
 import { BatchSheet } from '../records/batch-row.js';
-import { HeaderQuoteError, MAX_RECORD, RecordSplitter, RecordTooLongError, type Segment } from '../records/csv-records.js';
+import { HeaderQuoteError, MAX_RECORD, RecordSplitter, RecordTooLongError, SeparatorLineError, type Segment } from '../records/csv-records.js';
 import type { HeaderMessage, PieceReply, PieceRequest } from './batch-worker.js';
 
 
@@ -211,6 +211,9 @@ async function streamRows(inPath: string, input: AsyncIterable<string>, output: 
   } catch (err) {
     if (err instanceof HeaderQuoteError) {
       throw new InputError({ field: `header, line ${err.bad.line}, column ${err.bad.column}`, value: showValue(err.bad.text), reason: `a double quote opens this column name and ${err.bad.reason}`, accepted: 'a header row whose quoted names are closed (docs/batch.md)' });
+    }
+    if (err instanceof SeparatorLineError) {
+      throw new InputError({ field: 'batch file, line 1 (separator line)', value: showValue(err.text), accepted: 'sep=, or sep=; or sep= and a tab, or no separator line (the separator is then read from the header)' });
     }
     if (err instanceof RecordTooLongError) {
       throw new InputError({ field: `batch file, line ${err.line}`, value: showValue(inPath), reason: `a record runs on for more than ${MAX_RECORD} characters without a line break`, accepted: 'a CSV file with a header row and one visit per record (docs/batch.md)' });

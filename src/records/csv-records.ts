@@ -222,6 +222,31 @@ function lineStart(s: string, at: number, from: number): number {
   return i;
 }
 
+/** A separator line is shorter than this (`sep=;` with a few spaces). */
+const SEPARATOR_LINE_MAX = 32;
+
+/**
+ * The dialect a separator line names: `sep=,`, `sep=;` or `sep=` and a tab,
+ * alone on the first line (any case, spaces around allowed), as some
+ * spreadsheet exports begin so that a spreadsheet opens the file with the
+ * right separator. Undefined for any other line.
+ */
+export function separatorLine(line: string): Dialect | undefined {
+  if (line.length > SEPARATOR_LINE_MAX) return undefined;
+  const m = /^\s*sep=(.)[ ]*$/i.exec(line);
+  if (!m) return undefined;
+  const separator = m[1]!;
+  if (separator !== ',' && separator !== ';' && separator !== '\t') throw new SeparatorLineError(line.trim());
+  return { separator, decimalComma: separator === ';' };
+}
+
+/** A separator line naming a separator other than a comma, a semicolon or a tab: the file is refused. */
+export class SeparatorLineError extends Error {
+  constructor(readonly text: string) {
+    super(`line 1: the separator line ${JSON.stringify(text)} names a separator that is not a comma, a semicolon or a tab`);
+  }
+}
+
 /** The separator of a header record: the most frequent of comma, semicolon and tab outside quotes (a comma on a tie). */
 export function detectDialect(header: string): Dialect {
   const counts = { ',': 0, ';': 0, '\t': 0 };
@@ -287,7 +312,11 @@ export class RecordSplitter {
         this.pending = s;
         return out;
       }
-      pos = header;
+      pos = header.next;
+      // A separator line before the header is no record: the pieces start with the header.
+      from = header.start;
+      this.line += countBreaks(s, 0, from);
+      counted = from;
     }
     let crAt = -2; // the first CR at or after pos (-1: none), found when needed
     for (;;) {
@@ -334,11 +363,26 @@ export class RecordSplitter {
     return out;
   }
 
-  /** Read the header record (skipping empty lines) and the dialect; where the data start, or undefined until it is complete. */
-  private header(s: string, final: boolean): number | undefined {
+  /**
+   * Read the header record (skipping empty lines, and a separator line before
+   * it) and the dialect; where the header starts and where the data start, or
+   * undefined until it is complete.
+   */
+  private header(s: string, final: boolean): { start: number; next: number } | undefined {
     let start = 0;
     while (start < s.length && (s.charCodeAt(start) === LF || s.charCodeAt(start) === CR)) start++;
     if (start >= s.length && !final) return undefined;
+    // `sep=;` on a line of its own, as some spreadsheet exports begin, names the separator.
+    let given: Dialect | undefined;
+    const line = lineEnd(s, start, final);
+    if (line === undefined && s.length - start < SEPARATOR_LINE_MAX) return undefined; // it may yet be one
+    const named = line ? separatorLine(s.slice(start, line.end)) : undefined;
+    if (named) {
+      given = named;
+      start = line!.next;
+      while (start < s.length && (s.charCodeAt(start) === LF || s.charCodeAt(start) === CR)) start++;
+      if (start >= s.length && !final) return undefined;
+    }
     // The dialect from the header record: read up to its first line break outside quotes.
     let end = start;
     let inQuotes = false;
@@ -348,13 +392,13 @@ export class RecordSplitter {
       else if (!inQuotes && (c === LF || c === CR)) break;
     }
     if (end >= s.length && !final && s.length - start <= MAX_QUOTED_CELL) return undefined;
-    this.dialect = detectDialect(s.slice(start, end));
+    this.dialect = given ?? detectDialect(s.slice(start, end));
     this.sep = this.dialect.separator.charCodeAt(0);
     const next = readRecord(s, start, this.sep, -1, final);
     if (next === INCOMPLETE) return undefined;
     if (next < 0) throw new HeaderQuoteError(this.badRecord(s, start, lastBad.blamed, lastBad.reason, final, this.line + countBreaks(s, 0, start)));
     this.width = dsvFormat(this.dialect.separator).parseRows(s.slice(start, next))[0]?.length ?? 0;
-    return next;
+    return { start, next };
   }
 
   /** The bad record that starts at `start`, on file line `line`. */

@@ -129,6 +129,28 @@ describe('semicolon- and tab-separated files', () => {
     expect(rows[2]!.Note).toBe("'-"); // text beginning with "-" behind the cell guard
   });
 
+  it('takes the separator from a "sep=" line before the header (as some spreadsheet exports begin), which is no record', async () => {
+    // A comma in the header would win detection; the separator line says semicolon.
+    const semicolon = await batch('sep-semicolon.csv', '\ufeffsep=;\r\nid;sbp;dbp;edv;esv;pep;et;note, free text\r\nP1;120,5;80;120;50;90;290;a, b\r\n');
+    expect(semicolon.header.slice(0, 8)).toEqual(['id', 'sbp', 'dbp', 'edv', 'esv', 'pep', 'et', 'note, free text']);
+    expect(semicolon.rows).toHaveLength(1);
+    expect(semicolon.rows[0]!.error).toBe('');
+    expect(semicolon.rows[0]!.sbpUsed).toBe('120.5'); // decimal comma, as in any semicolon file
+    // Line numbers count the separator line: the stray quote is on line 4.
+    const comma = await batch('sep-comma.csv', 'SEP=,\nid,sbp,dbp,edv,esv,pep,et\nP1,120,80,120,50,90,290\nP2,120,"8"0,120,50,90,290\n');
+    expect(comma.rows.map((r) => r.id)).toEqual(['P1', 'P2']);
+    expect(comma.rows[0]!.error).toBe('');
+    expect(comma.rows[1]!.error).toMatch(/^line 4, column 3/);
+    const tab = await batch('sep-tab.tsv', 'sep=\t\nid\tsbp\tdbp\tedv\tesv\tpep\tet\nP1\t120\t80\t120\t50\t90\t290\n');
+    expect(tab.rows[0]!.error).toBe('');
+  });
+
+  it('refuses a separator line that names another separator: one message, exit 2', async () => {
+    const run = await batch('sep-pipe.csv', 'sep=|\nid|sbp|dbp|edv|esv|pep|et\n');
+    expect(run.code).toBe(2);
+    expect(run.stderr.trim().split('\n')).toEqual(['elastimate: batch file, line 1 (separator line): got "sep=|"; accepted: sep=, or sep=; or sep= and a tab, or no separator line (the separator is then read from the header)']);
+  });
+
   it('detects the tab from the header', async () => {
     const { rows } = await batch('tabs.tsv', 'id\tsbp\tdbp\tedv\tesv\tpep\tet\tnote\nT1\t118;122\t80\t120\t50\t90\t290\ta, b\n');
     expect(rows).toHaveLength(1);

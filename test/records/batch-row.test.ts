@@ -148,6 +148,30 @@ describe('CSV cells', () => {
   });
 });
 
+describe('a separator line before the header', () => {
+  /** The pieces the splitter gives for `text` pushed in pieces of `size` characters, joined, with the dialect. */
+  function split(text: string, size: number): { text: string; separator: string | undefined; decimalComma: boolean | undefined } {
+    const splitter = new RecordSplitter();
+    let out = '';
+    for (let at = 0; at < text.length; at += size) for (const s of splitter.push(text.slice(at, at + size))) out += s.text ?? '';
+    for (const s of splitter.end()) out += s.text ?? '';
+    return { text: out, separator: splitter.dialect?.separator, decimalComma: splitter.dialect?.decimalComma };
+  }
+
+  it('names the dialect and is left out of the pieces, wherever the input is cut', () => {
+    const body = 'id;sbp,x;dbp\r\nP1;120,5;80\r\n';
+    for (const first of ['sep=;\r\n', 'SEP=;\n', '\ufeffsep=; \n', '\n\nsep=;\n']) {
+      for (let size = 1; size <= first.length + body.length; size++) {
+        expect(split(first + body, size), JSON.stringify([first, size])).toEqual({ text: body, separator: ';', decimalComma: true });
+      }
+    }
+    // Without it the comma wins the header (two commas against two semicolons: a comma on a tie).
+    expect(split('id;sbp,x;dbp,y\n', 4).separator).toBe(',');
+    // A header that only begins like one is a header.
+    expect(split('sep=;id;sbp\n1;2;3\n', 3)).toEqual({ text: 'sep=;id;sbp\n1;2;3\n', separator: ';', decimalComma: true });
+  });
+});
+
 describe('the record splitter on any text (self-consistency: chunked against whole)', () => {
   /** Every segment as records: good text parsed by d3-dsv, a bad record as its line, column and cells. */
   function segmentsOf(text: string, cuts: number[]): unknown[] {
