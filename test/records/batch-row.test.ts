@@ -6,7 +6,7 @@ import { RESULT_KEYS, RESULT_UNITS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
-import { RecordSplitter } from '../../src/records/csv-records.js';
+import { RecordSplitter, type Segment } from '../../src/records/csv-records.js';
 import { CsvBytes, csvNumber, csvText, safeCell } from '../../src/render/csv.js';
 
 const HEADER = ['id', 'visit_date', 'SBP', 'dbp', 'hr', 'edv', 'esv', 'pep', 'ET', 'lvot_diameter', 'LVOT-VTI', 'aortic-stenosis', 'Rhythm', 'comment'];
@@ -153,8 +153,11 @@ describe('a separator line before the header', () => {
   function split(text: string, size: number): { text: string; separator: string | undefined; decimalComma: boolean | undefined } {
     const splitter = new RecordSplitter();
     let out = '';
-    for (let at = 0; at < text.length; at += size) for (const s of splitter.push(text.slice(at, at + size))) out += s.text ?? '';
-    for (const s of splitter.end()) out += s.text ?? '';
+    const take = (segments: Segment[]) => {
+      for (const s of segments) out += s.bad ? '(bad record)' : s.text;
+    };
+    for (let at = 0; at < text.length; at += size) take(splitter.push(text.slice(at, at + size)));
+    take(splitter.end());
     return { text: out, separator: splitter.dialect?.separator, decimalComma: splitter.dialect?.decimalComma };
   }
 
