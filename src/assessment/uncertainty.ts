@@ -614,23 +614,17 @@ export function changeNoiseChecks(first: VisitInputs, second: VisitInputs, optio
 
 /**
  * A subject's series with intervals: each visit's results get their 95 %
- * ranges (no sensitivity runs), and each change from the previous visit gets
- * its noise check. Entries are copied; the comparison rows are filled in place.
+ * ranges (no sensitivity runs), and each change from the previous visit its
+ * noise checks (`checks[i]`, from visit i − 1 to visit i; null for the first
+ * visit), for the caller to attach to its comparison rows
+ * (records/compare.ts attachNoiseChecks). Entries are copied.
  */
 export function seriesUncertainty<E extends { assessment: Assessment }>(
   entries: readonly E[],
-  changes: readonly ({ rows: { key: string; noise?: ChangeNoiseCheck }[] } | null)[],
   options: UncertaintyOptions = {},
-): { entries: E[]; reports: UncertaintyReport[] } {
+): { entries: E[]; reports: UncertaintyReport[]; checks: (Partial<Record<ChangeKey, ChangeNoiseCheck>> | null)[] } {
   const reports = entries.map((e) => assessUncertainty(e.assessment.inputs, { ...options, sensitivity: false }, e.assessment.choice, e.assessment.results));
   const withRanges = entries.map((e, i) => ({ ...e, assessment: { ...e.assessment, results: withIntervals(e.assessment.results, reports[i]!) } }));
-  changes.forEach((change, i) => {
-    if (!change || i === 0) return;
-    const checks = changeNoiseChecks(entries[i - 1]!.assessment.inputs, entries[i]!.assessment.inputs, options);
-    for (const row of change.rows) {
-      const check = checks[row.key as ChangeKey];
-      if (check) row.noise = check;
-    }
-  });
-  return { entries: withRanges, reports };
+  const checks = entries.map((e, i) => (i === 0 ? null : changeNoiseChecks(entries[i - 1]!.assessment.inputs, e.assessment.inputs, options)));
+  return { entries: withRanges, reports, checks };
 }

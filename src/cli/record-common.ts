@@ -128,8 +128,14 @@ export async function printSeries(file: SubjectFile, opts: { json?: boolean; unc
   const changes = changesAlongSeries(entries.map((e) => e.assessment));
   // --uncertainty: 95 % intervals per visit and the noise of each change (docs/uncertainty.md).
   const uncertainty = opts.uncertainty ? await Promise.all([import('../assessment/uncertainty.js'), import('../render/uncertainty.js')]) : null;
-  const ranges = uncertainty ? uncertainty[0].seriesUncertainty(entries, changes) : null;
-  if (ranges) entries = ranges.entries;
+  const ranges = uncertainty ? uncertainty[0].seriesUncertainty(entries) : null;
+  if (ranges) {
+    entries = ranges.entries;
+    changes.forEach((change, i) => {
+      const checks = ranges.checks[i];
+      if (change && checks) attachNoiseChecks(change, checks);
+    });
+  }
   if (opts.json) {
     const methods = entries[0]?.assessment.methodsVersion ?? METHODS_VERSION;
     process.stdout.write(stringifySafe(seriesToJson(file, entries, changes, toolVersion(), methods)) + '\n');
