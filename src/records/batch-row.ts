@@ -10,17 +10,16 @@
  * `lvotVti` and `LVOT_VTI` are one column. Everything else passes through.
  */
 import { dsvFormat } from 'd3-dsv';
-import { checkVisit } from '../assessment/checks.js';
+import { visitChecks } from '../assessment/checks.js';
 import { computeResultsInto, scratchResults } from '../assessment/graph/index.js';
 import { BSA_METHODS, MAP_METHODS, NUMERIC_FIELDS, PES_METHODS, RHYTHMS, SEXES, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import { MAX_READINGS, acceptedShape, parseFieldValues } from '../assessment/checked-inputs.js';
 import type { RawInputs } from '../assessment/inputs.js';
 import { METHODS_VERSION } from '../assessment/result.js';
 import { RESULT_KEYS, type Results } from '../assessment/graph/index.js';
-import type { Flag } from '../assessment/result.js';
 import type { VisitInputs } from '../assessment/inputs.js';
 import { InputError, describeProblem, showValue } from '../errors.js';
-import { CsvBytes, csvNumber, decimalsOf, flagCell, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
+import { CsvBytes, FlagCodes, csvNumber, decimalsOf, notComputableCell, resultCells, resultColumns, trailingColumns } from '../render/csv.js';
 import { KINDS, bareNumber, toInternalUnit } from '../units/quantity.js';
 import type { BadRecord, Dialect } from './csv-records.js';
 
@@ -293,13 +292,15 @@ function trailingCount(layout: BatchLayout): number {
 }
 
 /** What one row gives: its inputs as used, results and flags, or why it could not be computed. */
-type RowOutcome = { inputs: VisitInputs; results: Results; flags: Flag[]; error?: undefined } | { error: string };
+type RowOutcome = { inputs: VisitInputs; results: Results; flagsCell: string; error?: undefined } | { error: string };
 
 /** computeRow's numeric inputs by registry position, kept between rows. */
 const rowNumbers = new Array<unknown>(NUMERIC_FIELDS.length).fill(undefined);
 
 /** The inputs and results of the row computeRow computed last, rewritten for every row: a row's cells are written before the next row is computed. */
 let rowInputs: VisitInputs | undefined;
+/** The flags cell of the row computeRow computed last. */
+const rowFlags = new FlagCodes();
 /** (graph/plan.ts resultsInto) */
 let rowResults: Results | undefined;
 
@@ -311,7 +312,7 @@ function asTyped(err: InputError, typed: Map<string, string>): string {
 /**
  * The computation of one row, exactly as `assess` does it: the raw inputs
  * from the cells, parseInputs (its shape check done cell by cell, the rest by
- * parseFieldValues), computeResults and checkVisit. Never throws for bad
+ * parseFieldValues), the graph and the checks (visitChecks). Never throws for bad
  * input: the reason (one line) comes back instead.
  */
 function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome {
@@ -325,7 +326,9 @@ function computeRow(layout: BatchLayout, cells: readonly ReadCell[]): RowOutcome
     const numbers = rowNumbers.fill(undefined);
     const inputs = parseFieldValues(numbers, readCells(layout, cells, numbers, true, typed), (rowInputs ??= {} as VisitInputs));
     const results = computeResultsInto((rowResults ??= scratchResults()), inputs);
-    return { inputs, results, flags: checkVisit(inputs, results, false) }; // only the codes are written
+    // Only the codes are written: the checks go straight into the flags cell.
+    visitChecks(inputs, results, false, rowFlags.start());
+    return { inputs, results, flagsCell: rowFlags.cell };
   } catch (err) {
     if (err instanceof InputError) return { error: typed?.size ? asTyped(err, typed) : err.message.split('\n').join('; ') };
     throw err;
@@ -368,7 +371,7 @@ function outputCells(layout: BatchLayout, cells: readonly string[], row: RowOutc
   }
   for (const u of layout.used) out.push(csvNumber(row.inputs[u.key], u.unit));
   for (const cell of resultCells(row.results)) out.push(cell);
-  out.push(flagCell(row.flags), notComputableCell(row.results), METHODS_VERSION, '');
+  out.push(row.flagsCell, notComputableCell(row.results), METHODS_VERSION, '');
   return out;
 }
 
@@ -410,7 +413,7 @@ function writeTrailing(out: CsvBytes, layout: BatchLayout, row: RowOutcome, writ
     writeUsed(out, row.inputs);
     out.resultCells(row.results);
     out.comma();
-    out.text(flagCell(row.flags));
+    out.text(row.flagsCell);
     out.comma();
     out.text(notComputableCell(row.results));
     out.comma();

@@ -317,6 +317,11 @@ export class RecordSplitter {
       from = header.start;
       this.line += countBreaks(s, 0, from);
       counted = from;
+      // The header is a piece of its own, so that it is known (and can be passed on) before any row is computed.
+      give(pos);
+      this.line += countBreaks(s, counted, pos);
+      counted = pos;
+      from = pos;
     }
     let crAt = -2; // the first CR at or after pos (-1: none), found when needed
     for (;;) {

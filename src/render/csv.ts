@@ -14,6 +14,7 @@ import type { Assessment } from '../assessment/assess.js';
 import { RESULT_KEYS, RESULT_UNITS, type ResultKey, type Results } from '../assessment/graph/index.js';
 import { NUMERIC_FIELDS, VALVE_FLAGS, type NumericKey } from '../assessment/fields.js';
 import type { VisitInputs } from '../assessment/inputs.js';
+import type { FlagSink } from '../assessment/checks.js';
 import type { Flag, Quantity } from '../assessment/result.js';
 import type { Comparison } from '../records/compare.js';
 import { sanitizeText } from '../text/sanitize.js';
@@ -436,10 +437,32 @@ export function resultCells(r: Results): string[] {
 }
 
 export function flagCell(flags: readonly Flag[]): string {
-  // flags.map((f) => f.code).join(';'), without the array: this runs for every row of a batch.
   let text = '';
-  for (let i = 0; i < flags.length; i++) text = i === 0 ? flags[i]!.code : `${text};${flags[i]!.code}`;
+  for (let i = 0; i < flags.length; i++) text = withFlagCode(text, flags[i]!.code);
   return text;
+}
+
+/** The flags cell with one more code: codes are separated by semicolons. */
+function withFlagCode(cell: string, code: string): string {
+  return cell === '' ? code : `${cell};${code}`;
+}
+
+/**
+ * The flags cell of a visit built as its checks are made (a FlagSink for
+ * visitChecks): what flagCell gives for checkVisit's flags, without an object
+ * per flag. A batch keeps one per thread: `start` before each row.
+ */
+export class FlagCodes implements FlagSink {
+  cell = '';
+
+  start(): this {
+    this.cell = '';
+    return this;
+  }
+
+  add(code: string): void {
+    this.cell = withFlagCode(this.cell, code);
+  }
 }
 
 export function notComputableCell(r: Results): string {

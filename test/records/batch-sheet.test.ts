@@ -13,14 +13,14 @@ import { dsvFormat } from 'd3-dsv';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { assess } from '../../src/assessment/assess.js';
-import { checkVisit } from '../../src/assessment/checks.js';
+import { visitChecks } from '../../src/assessment/checks.js';
 import { RESULT_KEYS } from '../../src/assessment/graph/index.js';
 import { parseInputs } from '../../src/assessment/inputs.js';
 import { METHODS_VERSION } from '../../src/assessment/result.js';
 import { InputError } from '../../src/errors.js';
 import { BatchSheet, batchRow, planBatch, rawFromCells } from '../../src/records/batch-row.js';
 import { RecordSplitter, type Dialect, type Segment } from '../../src/records/csv-records.js';
-import { CsvBytes, csvNumber, csvText, flagCell, guardCell, notComputableCell } from '../../src/render/csv.js';
+import { CsvBytes, FlagCodes, csvNumber, csvText, flagCell, guardCell, notComputableCell } from '../../src/render/csv.js';
 import { bareNumber } from '../../src/units/quantity.js';
 
 const HEADER = [
@@ -123,7 +123,8 @@ describe('batch rows against assess', () => {
     expect(computed).toBeLessThan(380);
   });
 
-  it('checks without messages raise the same flags in the same order', () => {
+  it('checks without messages raise the same flags in the same order, and the flags cell built as they are made is flagCell of them', () => {
+    const codes = new FlagCodes();
     fc.assert(
       fc.property(row, (cells) => {
         let inputs;
@@ -133,7 +134,11 @@ describe('batch rows against assess', () => {
           return;
         }
         const a = assess(inputs);
-        expect(checkVisit(inputs, a.results, false).map((f) => [f.code, f.level])).toEqual(a.flags.map((f) => [f.code, f.level]));
+        const quiet: [string, string, string][] = [];
+        visitChecks(inputs, a.results, false, { add: (code, level, message) => quiet.push([code, level, message]) });
+        expect(quiet).toEqual(a.flags.map((f) => [f.code, f.level, '']));
+        visitChecks(inputs, a.results, false, codes.start());
+        expect(codes.cell).toBe(flagCell(a.flags));
       }),
       { numRuns: 200 },
     );

@@ -53,8 +53,14 @@ export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Resu
  * out before it computes the next row (plan.ts resultsInto).
  */
 export function computeResultsInto(target: Results, inputs: VisitInputs): Results {
-  return resultsInto(target, inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod });
+  // The visit's own choices (as computeResults takes them) in one object kept between calls: the plan copies them.
+  const selection = intoSelection;
+  selection.pesMethod = inputs.pesMethod;
+  selection.mapMethod = inputs.mapMethod;
+  selection.bsaMethod = inputs.bsaMethod;
+  return resultsInto(target, inputs, selection);
 }
+const intoSelection: Selection = { pesMethod: 'sbp90', strokeVolumeSource: 'doppler', mapMethod: 'third', bsaMethod: 'mosteller' };
 
 /** Whether the visit has a Doppler stroke volume (entered, or from LVOT diameter and VTI). */
 export function hasDopplerStrokeVolume(inputs: VisitInputs): boolean {

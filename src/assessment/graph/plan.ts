@@ -158,10 +158,11 @@ const planCode = ((): ((presentMask: number, selection: Selection) => number) =>
   return factory(SELECTION_KEYS.map((k) => SELECTION_VALUES[k])) as (presentMask: number, selection: Selection) => number;
 })();
 
-function planByCode(code: number, present: () => boolean[], selection: Selection): Plan {
+function planByCode(code: number, inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
   let plan = plans.get(code);
   if (!plan) {
-    plan = buildPlan(present(), selection);
+    // The plan keeps a copy of the choices: a caller may reuse its selection object.
+    plan = buildPlan(presentInputs(inputs), { ...selection });
     plans.set(code, plan);
   }
   return plan;
@@ -169,7 +170,7 @@ function planByCode(code: number, present: () => boolean[], selection: Selection
 
 /** The plan for a visit's inputs under these choices. */
 export function planForInputs(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
-  return planByCode(planCode(readInputs(inputs, scratchValues), selection), () => presentInputs(inputs), selection);
+  return planByCode(planCode(readInputs(inputs, scratchValues), selection), inputs, selection);
 }
 
 type InputReader = (inputs: Readonly<Record<NumericKey, number | null>>, v: Float64Array) => number;
@@ -306,7 +307,7 @@ export function resultsInto(target: Results, inputs: Readonly<Record<NumericKey,
 /** The plan of a visit's inputs under these choices, evaluated into scratchValues and scratchReasons. */
 function evaluateInputs(inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
   const v = scratchValues;
-  const plan = planByCode(planCode(readInputs(inputs, v), selection), () => presentInputs(inputs), selection);
+  const plan = planByCode(planCode(readInputs(inputs, v), selection), inputs, selection);
   v.fill(Number.NaN, INPUT_COUNT);
   evaluatePlan(plan, v, scratchReasons);
   return plan;
