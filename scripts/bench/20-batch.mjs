@@ -3,9 +3,10 @@
 // running the batch) at most 200 MiB.
 //
 // The reference reads the whole file and splits it into lines and cells (readFileSync, split on
-// "\n" and ","): the least any CSV tool must do. The batch does that and more: RFC 4180 parsing
-// (csv-parse), checking and converting every input, the full computation and checks per row, and
-// writing 40-odd result cells per row (csv-stringify) to a file.
+// "\n" and ","): the least any CSV tool must do. The batch does that and more: RFC 4180 reading
+// (the record splitter, then d3-dsv or the line-by-line reader for text without quotes), checking
+// and converting every input, the full computation and checks per row, and writing the inputs as
+// used and 40-odd result cells per row to a file, fsynced and renamed into place.
 // Memory: the batch runs inside a small wrapper process that imports bin/elastimate.js and prints
 // process.resourceUsage().maxRSS (kilobytes on Linux) when it exits; the row's ratio is MiB / 200.
 import { spawnSync } from 'node:child_process';
