@@ -116,7 +116,8 @@ export class FileFault extends Error {
   readonly code: string;
 
   constructor(path: string, doing: string, cause: string, code = '', outcome = 'nothing was changed') {
-    super(`${JSON.stringify(path)}: ${doing}: ${cause}${code ? ` (${code})` : ''}; ${outcome}`);
+    // The path whole (a user needs all of it), quoted, with control and bidirectional characters made visible.
+    super(`${sanitizeText(JSON.stringify(path))}: ${doing}: ${cause}${code ? ` (${code})` : ''}; ${outcome}`);
     this.name = 'FileFault';
     this.path = path;
     this.code = code;

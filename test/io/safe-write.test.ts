@@ -99,6 +99,20 @@ describe('writeFileSafely', () => {
     });
   }
 
+  it('a FileFault names the file whole, with control and bidirectional characters shown as stand-ins (text/sanitize.ts)', () => {
+    const target = join(dir, 'odd\u009b2J\u202eam.txt');
+    const { fs } = recorder({ openSync: 'EACCES' });
+    let caught: unknown;
+    try {
+      writeFileSafely(target, 'x', { option: '--out', fs });
+    } catch (err) {
+      caught = err;
+    }
+    const message = (caught as FileFault).message;
+    expect(message).toContain(join(dir, 'odd\ufffd2J\ufffdam.txt'));
+    expect(message).not.toMatch(/[\u0080-\u009f\u202a-\u202e\u2066-\u2069]/);
+  });
+
   it('refuses a target that is the same file as an input, before opening anything', () => {
     const input = join(dir, 'input.json');
     writeFileSync(input, '{}');
