@@ -25,8 +25,9 @@ function unsetKey(name: string): keyof RawInputs {
   return key;
 }
 
+/** A value before or after an edit, as a change line shows it: user text through the one sanitiser. */
 function shown(v: unknown): string {
-  return v === undefined ? '(none)' : typeof v === 'string' ? v : JSON.stringify(v);
+  return v === undefined ? '(none)' : sanitizeText(typeof v === 'string' ? v : JSON.stringify(v));
 }
 
 function sameVisit(a: Visit, b: Visit): boolean {

@@ -6,7 +6,7 @@
  */
 import { assess, type Assessment } from '../assessment/assess.js';
 import { parseInputs, type RawInputs, type VisitInputs } from '../assessment/inputs.js';
-import { InputError } from '../errors.js';
+import { InputError, showValue } from '../errors.js';
 import type { SubjectFile, SubjectInfo, Visit } from './subject-schema.js';
 
 export interface SeriesEntry {
@@ -82,18 +82,18 @@ export function findVisit(file: SubjectFile, selector: string): { index: number;
   if (/^\d+$/.test(text)) {
     const n = Number(text);
     const hit = ordered.find((v) => v.index === n);
-    if (!hit) throw new InputError({ field: 'visit', value: JSON.stringify(selector), reason: 'no such visit', accepted });
+    if (!hit) throw new InputError({ field: 'visit', value: showValue(selector), reason: 'no such visit', accepted });
     return hit;
   }
   if (/^\d{4}-\d{2}-\d{2}$/.test(text)) {
     const hits = ordered.filter((v) => v.visit.date === text);
     if (hits.length === 1) return hits[0]!;
     if (hits.length > 1) {
-      throw new InputError({ field: 'visit', value: JSON.stringify(selector), reason: `${hits.length} visits share this date`, accepted: `one of their numbers: ${hits.map((h) => h.index).join(', ')}` });
+      throw new InputError({ field: 'visit', value: showValue(selector), reason: `${hits.length} visits share this date`, accepted: `one of their numbers: ${hits.map((h) => h.index).join(', ')}` });
     }
-    throw new InputError({ field: 'visit', value: JSON.stringify(selector), reason: 'no visit on this date', accepted });
+    throw new InputError({ field: 'visit', value: showValue(selector), reason: 'no visit on this date', accepted });
   }
-  throw new InputError({ field: 'visit', value: JSON.stringify(selector), accepted });
+  throw new InputError({ field: 'visit', value: showValue(selector), accepted });
 }
 
 /** Insert a visit keeping the file in date order (after any visit on the same date). */

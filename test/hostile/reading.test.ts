@@ -169,9 +169,18 @@ describe('control characters never reach a screen or a file raw; notes are store
     expect(add.stdout).toContain('subject CO-\ufffd2J-1980-05-04');
     expect(add.stderr).toContain('warning: subject id "CO-\ufffd2J-1980-05-04" contains what looks like a full date');
     expect(JSON.parse(readFileSync(path, 'utf8')).visits[0].note).toBe('a\u001b[2Jb');
+    // record edit lists the change of note, before and after, with stand-ins; a visit chosen by a text
+    // that is no visit is refused with the text shown the same way.
+    const edit = ok(await runCli(['record', 'edit', path, '1', '--note', 'c\u001b]0;x\u0007d\u202ee', '--yes']));
+    expect(edit.stdout + edit.stderr).not.toMatch(RAW_CONTROL);
+    expect(edit.stdout).toContain('note: a␛[2Jb → c␛]0;x␇d\ufffde');
+    const missing = await runCli(['record', 'compare', path, '1', '2024-\u009b1\u202e']);
+    expect(missing.code).toBe(2);
+    expect(missing.stderr).toContain('visit: got "2024-\ufffd1\ufffd"');
+    expect(missing.stdout + missing.stderr).not.toMatch(RAW_CONTROL);
     const remove = ok(await runCli(['record', 'remove', path, '1', '--yes']));
     expect(remove.stdout + remove.stderr).not.toMatch(RAW_CONTROL);
-    expect(remove.stdout).toContain('(note: a␛[2Jb)');
+    expect(remove.stdout).toContain('(note: c␛]0;x␇d\ufffde)');
   });
 
   it('record show --json keeps the note exactly (C1 and DEL as \\u escapes)', async () => {
