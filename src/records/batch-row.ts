@@ -247,7 +247,8 @@ function readCells(layout: BatchLayout, cells: readonly ReadCell[], numbers: unk
   for (const { index, column, unit } of layout.recognised) {
     const read = cells[index];
     if (typeof read === 'number') {
-      numbers[(column as { field: number }).field] = read;
+      // Only a numeric column's cell is read as a number (BatchSheet plainPiece).
+      if (column.kind === 'number') numbers[column.field] = read;
       continue;
     }
     const cell = (read ?? '').trim();
@@ -297,12 +298,14 @@ type RowOutcome = { inputs: VisitInputs; results: Results; flagsCell: string; er
 /** computeRow's numeric inputs by registry position, kept between rows. */
 const rowNumbers = new Array<unknown>(NUMERIC_FIELDS.length).fill(undefined);
 
-/** The inputs and results of the row computeRow computed last, rewritten for every row: a row's cells are written before the next row is computed. */
+/*
+ * The inputs, results and flags cell of the row computeRow computed last, one of each per thread and
+ * rewritten for every row (parseFieldValues into, graph/plan.ts resultsInto, FlagCodes): a row's cells
+ * are written before the next row is computed.
+ */
 let rowInputs: VisitInputs | undefined;
-/** The flags cell of the row computeRow computed last. */
-const rowFlags = new FlagCodes();
-/** (graph/plan.ts resultsInto) */
 let rowResults: Results | undefined;
+const rowFlags = new FlagCodes();
 
 /** A message naming the text as typed where the unit layer saw it changed (a decimal comma read as a point). */
 function asTyped(err: InputError, typed: Map<string, string>): string {

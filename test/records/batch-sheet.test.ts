@@ -240,8 +240,8 @@ describe('BatchSheet bytes', () => {
       { numRuns: 150 },
     );
     // Both paths were taken, many times.
-    expect(plainRows).toBeGreaterThan(200);
-    expect(otherRows).toBeGreaterThan(200);
+    expect(plainRows).toBeGreaterThan(100); // about 240 (210–270 seen), so never by chance
+    expect(otherRows).toBeGreaterThan(200); // about 450 (410–510 seen)
   });
 
   it('write numbers exactly as csvNumber does, whatever the value and unit', () => {
