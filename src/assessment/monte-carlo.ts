@@ -38,10 +38,12 @@ const STEP = 2 ** -31;
  * u and v come straight from the generator's 32-bit outputs, as pure-rand's
  * documentation shows for throughput: the signed output n gives
  * (n + ½)·2⁻³¹, symmetric about 0 and never 0 (resolution 2⁻³¹, ample for
- * 95 % ranges). Fills `target[0..count)`; a stream read in even-sized
- * chunks gives the same sequence as one long read.
+ * 95 % ranges). Fills `target[0..count)` (with mean + sd·z when given); a
+ * stream read in even-sized chunks gives the same sequence as one long read.
  */
-export function fillNormals(rng: RandomGenerator, target: Float64Array, count = target.length): Float64Array {
+export function fillNormals(rng: RandomGenerator, target: Float64Array, count = target.length, mean = 0, sd = 1): Float64Array {
+  // Each deviate z is written as mean + sd·z: an input's draws around its value in the same pass (z itself
+  // by default: 0 + 1·z is z exactly, z never being −0).
   let i = 0;
   while (i < count) {
     const u = (rng.next() | 0) * STEP + STEP / 2;
@@ -49,8 +51,8 @@ export function fillNormals(rng: RandomGenerator, target: Float64Array, count = 
     const s = u * u + v * v;
     if (s >= 1) continue;
     const f = Math.sqrt((-2 * Math.log(s)) / s);
-    target[i++] = u * f;
-    if (i < count) target[i++] = v * f;
+    target[i++] = mean + sd * (u * f);
+    if (i < count) target[i++] = mean + sd * (v * f);
   }
   return target;
 }

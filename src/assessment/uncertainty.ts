@@ -203,18 +203,12 @@ function copyInto(target: Float32Array, source: Float64Array, start: number, n: 
   for (let i = 0; i < n; i++) target[start + i] = source[i]!;
 }
 
-/** Fill a drawn input's column: its value plus SD times a standard normal deviate. */
-function drawInput(column: Float64Array, value: number, sd: number, z: Float64Array, n: number): void {
-  for (let i = 0; i < n; i++) column[i] = value + sd * z[i]!;
-}
-
 /** The next n draws of every input with an error into its column: x₀ + SD·z, z the next deviates of the input's own stream. */
-function drawChunk(plan: RunPlan, columns: readonly Float64Array[], streams: readonly RandomGenerator[], z: readonly Float64Array[], n: number): void {
+function drawChunk(plan: RunPlan, columns: readonly Float64Array[], streams: readonly RandomGenerator[], n: number): void {
   const { active, nominal } = plan;
   for (let a = 0; a < active.length; a++) {
     const { input, stream, sd } = active[a]!;
-    fillNormals(streams[stream]!, z[a]!, n);
-    drawInput(columns[a]!, nominal[slotOf(input)]!, sd, z[a]!, n);
+    fillNormals(streams[stream]!, columns[a]!, n, nominal[slotOf(input)]!, sd);
   }
 }
 
@@ -233,7 +227,7 @@ export function drawVisitInputs(plan: RunPlan, program: DrawProgram, seed: numbe
   const skip = new Float64Array(Math.max(start, n));
   if (start > 0) for (const { stream } of plan.active) fillNormals(streams[stream]!, skip, start);
   const columns = plan.active.map((a) => program.input(a.input));
-  drawChunk(plan, columns, streams, plan.active.map(() => new Float64Array(n)), n);
+  drawChunk(plan, columns, streams, n);
 }
 
 /**
@@ -249,7 +243,6 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
   const values = new Map<ResultKey, Float32Array>(keys.map((k) => [k, new Float32Array(draws)]));
   const stored = [...values].map(([key, target]) => ({ target, source: program.output(key) }));
   const withMethodError = method !== null;
-  const z = active.map(() => new Float64Array(CHUNK));
   const w = new Float64Array(CHUNK);
   const sim: Simulation = {
     draws, values, eesLosses: new Float64Array(GRAPH_SLOTS), above: 0, ratioCount: 0, aboveCombined: 0, combinedCount: 0,
@@ -263,7 +256,7 @@ function simulate(plan: RunPlan, draws: number, streams: RandomGenerator[], keys
   const ratioColumn = program.output('eaEes');
   for (let start = 0; start < draws; start += CHUNK) {
     const n = Math.min(CHUNK, draws - start);
-    drawChunk(plan, columns, streams, z, n);
+    drawChunk(plan, columns, streams, n);
     program.run(n);
     program.countLosses('ees', n, sim.eesLosses);
     for (const { target, source } of stored) copyInto(target, source, start, n);
@@ -333,7 +326,6 @@ function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: re
   const program = compileDraws(graph, nominal, active.map((a) => a.input), wanted, CHUNK);
   const hold = (input: ErrorInputKey) => program.input(input).fill(nominal[slotOf(input)]!);
   for (const { input } of active) hold(input);
-  const z = new Float64Array(CHUNK);
   const result = new Map<ErrorInputKey, Float64Array>();
   const streams = randomStreams(seed, STREAM_COUNT);
   const outputs = keys.map((k) => program.output(k));
@@ -346,8 +338,7 @@ function oneAtATime(plan: RunPlan, seed: number, drawsPerInput: number, keys: re
     const sumSq = new Float64Array(keys.length);
     for (let start = 0; start < drawsPerInput; start += CHUNK) {
       const n = Math.min(CHUNK, drawsPerInput - start);
-      fillNormals(streams[stream]!, z, n);
-      drawInput(column, nominal[slotOf(input)]!, sd, z, n);
+      fillNormals(streams[stream]!, column, n, nominal[slotOf(input)]!, sd);
       program.run(n);
       for (let q = 0; q < keys.length; q++) accumulate(outputs[q]!, centres[q]!, n, q, count, sum, sumSq);
     }
