@@ -52,11 +52,6 @@ export function sanitizeText(text: string, options: SanitizeOptions = {}): strin
   return text.replace(options.keepWhitespace ? CONTROLS_BUT_WHITESPACE_G : ALL_CONTROLS_G, controlPicture);
 }
 
-/** True when `text` holds a control character that sanitizeText would replace. */
-export function hasControlCharacters(text: string, options: SanitizeOptions = {}): boolean {
-  return (options.keepWhitespace ? CONTROLS_BUT_WHITESPACE : ALL_CONTROLS).test(text);
-}
-
 /**
  * Text for HTML or SVG (XML) content and attribute values: control characters
  * replaced (XML 1.0 forbids most of them outright), then `& < > "` escaped.
