@@ -104,30 +104,29 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs, into
     else if (f.key === 'dbp') dbpReadings = parsed;
   }
 
-  const one = meanOf;
-  const sbp = one(FIELD_INDEX.sbp);
-  const dbp = one(FIELD_INDEX.dbp);
-  const edv = one(FIELD_INDEX.edv);
-  const esv = one(FIELD_INDEX.esv);
+  const sbp = meanOf(FIELD_INDEX.sbp);
+  const dbp = meanOf(FIELD_INDEX.dbp);
+  const edv = meanOf(FIELD_INDEX.edv);
+  const esv = meanOf(FIELD_INDEX.esv);
   if (sbp !== null && dbp !== null && dbp >= sbp) {
     problems.push({ field: 'dbp', value: showValue(round(dbp)), reason: `not below SBP ${round(sbp)} mmHg`, accepted: 'DBP lower than SBP' });
   }
   if (edv !== null && esv !== null && esv >= edv) {
     problems.push({ field: 'esv', value: showValue(round(esv)), reason: `not below EDV ${round(edv)} mL`, accepted: 'ESV lower than EDV' });
   }
-  const lvotDiameter = one(FIELD_INDEX.lvotDiameter);
-  const lvotVti = one(FIELD_INDEX.lvotVti);
+  const lvotDiameter = meanOf(FIELD_INDEX.lvotDiameter);
+  const lvotVti = meanOf(FIELD_INDEX.lvotVti);
   if ((lvotDiameter === null) !== (lvotVti === null) && problems.length === 0) {
     const field = lvotDiameter === null ? 'lvot-diameter' : 'lvot-vti';
     problems.push({ field, value: '', reason: 'Doppler stroke volume needs both LVOT diameter and VTI', accepted: 'both lvot-diameter and lvot-vti, or neither' });
   }
-  const ivc = one(FIELD_INDEX.ivc);
-  const ivcCollapse = one(FIELD_INDEX.ivcCollapse);
+  const ivc = meanOf(FIELD_INDEX.ivc);
+  const ivcCollapse = meanOf(FIELD_INDEX.ivcCollapse);
   if ((ivc === null) !== (ivcCollapse === null) && problems.length === 0) {
     const field = ivc === null ? 'ivc' : 'ivc-collapse';
     problems.push({ field, value: '', reason: 'estimated right-atrial pressure needs both the IVC diameter and its collapse', accepted: 'both ivc and ivc-collapse, or neither' });
   }
-  const pesMeasured = one(FIELD_INDEX.pesMeasured);
+  const pesMeasured = meanOf(FIELD_INDEX.pesMeasured);
   const pesMethod: PesMethod = raw.pesMethod ?? (pesMeasured !== null ? 'measured' : 'sbp90');
   if (pesMethod === 'measured' && pesMeasured === null && !isAbsent(raw.pesMethod)) {
     problems.push({ field: 'pes-measured', value: '', reason: 'pes-method "measured" needs the measured value', accepted: 'a measured end-systolic pressure, 40–260 mmHg' });
@@ -140,26 +139,26 @@ export function parseFieldValues(given: readonly unknown[], raw: RawInputs, into
   inputs.dbpReadings = dbpReadings ?? [];
   inputs.sbp = sbp as number;
   inputs.dbp = dbp as number;
-  inputs.hr = one(FIELD_INDEX.hr);
+  inputs.hr = meanOf(FIELD_INDEX.hr);
   inputs.edv = edv as number;
   inputs.esv = esv as number;
-  inputs.ef = one(FIELD_INDEX.ef);
-  inputs.sv = one(FIELD_INDEX.sv);
+  inputs.ef = meanOf(FIELD_INDEX.ef);
+  inputs.sv = meanOf(FIELD_INDEX.sv);
   inputs.lvotDiameter = lvotDiameter;
   inputs.lvotVti = lvotVti;
-  inputs.pep = one(FIELD_INDEX.pep) as number;
-  inputs.et = one(FIELD_INDEX.et) as number;
-  inputs.height = one(FIELD_INDEX.height);
-  inputs.weight = one(FIELD_INDEX.weight);
-  inputs.age = one(FIELD_INDEX.age);
+  inputs.pep = meanOf(FIELD_INDEX.pep) as number;
+  inputs.et = meanOf(FIELD_INDEX.et) as number;
+  inputs.height = meanOf(FIELD_INDEX.height);
+  inputs.weight = meanOf(FIELD_INDEX.weight);
+  inputs.age = meanOf(FIELD_INDEX.age);
   inputs.pesMeasured = pesMeasured;
-  inputs.edp = one(FIELD_INDEX.edp);
-  inputs.eOverEPrime = one(FIELD_INDEX.eOverEPrime);
-  inputs.lvids = one(FIELD_INDEX.lvids);
-  inputs.pwts = one(FIELD_INDEX.pwts);
-  inputs.tapse = one(FIELD_INDEX.tapse);
-  inputs.trVelocity = one(FIELD_INDEX.trVelocity);
-  inputs.rap = one(FIELD_INDEX.rap);
+  inputs.edp = meanOf(FIELD_INDEX.edp);
+  inputs.eOverEPrime = meanOf(FIELD_INDEX.eOverEPrime);
+  inputs.lvids = meanOf(FIELD_INDEX.lvids);
+  inputs.pwts = meanOf(FIELD_INDEX.pwts);
+  inputs.tapse = meanOf(FIELD_INDEX.tapse);
+  inputs.trVelocity = meanOf(FIELD_INDEX.trVelocity);
+  inputs.rap = meanOf(FIELD_INDEX.rap);
   inputs.ivc = ivc;
   inputs.ivcCollapse = ivcCollapse;
   inputs.rhythm = raw.rhythm ?? 'sinus';

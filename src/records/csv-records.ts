@@ -222,6 +222,13 @@ function lineStart(s: string, at: number, from: number): number {
   return i;
 }
 
+/** Where the text from `at` on no longer starts with line breaks (empty lines skipped). */
+function afterLineBreaks(s: string, at: number): number {
+  let i = at;
+  while (i < s.length && (s.charCodeAt(i) === LF || s.charCodeAt(i) === CR)) i++;
+  return i;
+}
+
 /** A separator line is shorter than this (`sep=;` with a few spaces). */
 const SEPARATOR_LINE_MAX = 32;
 
@@ -312,16 +319,13 @@ export class RecordSplitter {
         this.pending = s;
         return out;
       }
-      pos = header.next;
-      // A separator line before the header is no record: the pieces start with the header.
+      // The header is a piece of its own, so that it is known (and can be passed on) before any row is
+      // computed; a separator line before it is no record.
       from = header.start;
-      this.line += countBreaks(s, 0, from);
-      counted = from;
-      // The header is a piece of its own, so that it is known (and can be passed on) before any row is computed.
+      pos = header.next;
       give(pos);
-      this.line += countBreaks(s, counted, pos);
-      counted = pos;
-      from = pos;
+      this.line += countBreaks(s, 0, pos);
+      counted = from = pos;
     }
     let crAt = -2; // the first CR at or after pos (-1: none), found when needed
     for (;;) {
@@ -374,8 +378,7 @@ export class RecordSplitter {
    * undefined until it is complete.
    */
   private header(s: string, final: boolean): { start: number; next: number } | undefined {
-    let start = 0;
-    while (start < s.length && (s.charCodeAt(start) === LF || s.charCodeAt(start) === CR)) start++;
+    let start = afterLineBreaks(s, 0);
     if (start >= s.length && !final) return undefined;
     // `sep=;` on a line of its own, as some spreadsheet exports begin, names the separator.
     let given: Dialect | undefined;
@@ -384,8 +387,7 @@ export class RecordSplitter {
     const named = line ? separatorLine(s.slice(start, line.end)) : undefined;
     if (named) {
       given = named;
-      start = line!.next;
-      while (start < s.length && (s.charCodeAt(start) === LF || s.charCodeAt(start) === CR)) start++;
+      start = afterLineBreaks(s, line!.next);
       if (start >= s.length && !final) return undefined;
     }
     // The dialect from the header record: read up to its first line break outside quotes.

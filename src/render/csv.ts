@@ -38,6 +38,10 @@ function looksLikeFormula(cell: string): boolean {
 const FORMULA_START = new Uint8Array(128);
 for (const c of '=+-@\t\r') FORMULA_START[c.charCodeAt(0)] = 1;
 
+/** The characters a text cell is copied with as they are (1), by code: printable ASCII but the comma and the double quote. */
+const PLAIN_CHARACTER = new Uint8Array(128);
+for (let c = 0x20; c < 0x7f; c++) if (c !== 44 && c !== 34) PLAIN_CHARACTER[c] = 1;
+
 /**
  * The one CSV cell guard, for every CSV the tool writes (export and batch):
  * a text cell a spreadsheet would run as a formula gets a leading single
@@ -162,7 +166,7 @@ export class CsvBytes {
     let p = start;
     for (let i = 0; plain && i < n; i++) {
       const c = cell.charCodeAt(i);
-      if (c >= 0x7f || c < 0x20 || c === 34 || c === 44) plain = false;
+      if (c >= 128 || PLAIN_CHARACTER[c] !== 1) plain = false;
       else buf[p++] = c;
     }
     if (plain) {
@@ -205,7 +209,7 @@ export class CsvBytes {
         continue;
       }
       if (c === 10 || c === 13) break;
-      if (c < 0x20 || c >= 0x7f || c === 44 || c === 34 || (cellStart && FORMULA_START[c] === 1)) plain = false;
+      if (c >= 128 || PLAIN_CHARACTER[c] !== 1 || (cellStart && FORMULA_START[c] === 1)) plain = false;
       buf[p++] = c;
       cellStart = false;
     }

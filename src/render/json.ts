@@ -6,6 +6,7 @@
 import type { Assessment } from '../assessment/assess.js';
 import type { Mechanics } from '../assessment/mechanics.js';
 import type { EndDiastolicCurve } from '../physiology/end-diastolic-pressure-volume.js';
+import { BEYOND_C0_CLASS } from '../text/sanitize.js';
 
 export const JSON_FORMAT = 'elastimate-assessment';
 /** 2: result keys renamed (svUsed, efUsed, normalizedElastanceAvg/Est, interval95, edpUsed, edvUsed, esvUsed); docs/json-output.md lists them. */
@@ -64,11 +65,10 @@ export const INPUT_UNITS = {
 /** Serialise with a guard: any non-finite number becomes null. */
 export function stringifySafe(value: unknown, indent = 2): string {
   const text = JSON.stringify(value, (_k, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), indent);
-  // JSON.stringify escapes C0 controls but leaves DEL, the C1 controls (U+009B is a one-character
-  // CSI on many terminals) and the bidirectional embedding, override and isolate controls (which
-  // reorder what a terminal shows after them; text/sanitize.ts) raw: written as \u escapes, the
-  // same JSON value, nothing raw.
+  // JSON.stringify escapes C0 controls but leaves the other characters the sanitiser replaces raw
+  // (DEL, C1, whose U+009B is a one-character CSI on many terminals, and the bidirectional controls
+  // that reorder what a terminal shows: text/sanitize.ts): written as \u escapes, the same JSON value.
   return RAW_IN_JSON.test(text) ? text.replace(RAW_IN_JSON_G, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`) : text;
 }
-const RAW_IN_JSON = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
-const RAW_IN_JSON_G = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
+const RAW_IN_JSON = new RegExp(`[${BEYOND_C0_CLASS}]`);
+const RAW_IN_JSON_G = new RegExp(RAW_IN_JSON.source, 'g');

@@ -32,10 +32,17 @@ export interface SanitizeOptions {
   keepWhitespace?: boolean;
 }
 
-const ALL_CONTROLS = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
-const ALL_CONTROLS_G = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
-const CONTROLS_BUT_WHITESPACE = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
-const CONTROLS_BUT_WHITESPACE_G = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
+/**
+ * What is replaced besides C0, as the body of a regular-expression character
+ * class: DEL, the C1 controls and the bidirectional controls. JSON output
+ * escapes the same characters (render/json.ts), since JSON.stringify leaves
+ * them raw.
+ */
+export const BEYOND_C0_CLASS = '\\u007f-\\u009f\\u202a-\\u202e\\u2066-\\u2069';
+const ALL_CONTROLS = new RegExp(`[\\u0000-\\u001f${BEYOND_C0_CLASS}]`);
+const ALL_CONTROLS_G = new RegExp(ALL_CONTROLS.source, 'g');
+const CONTROLS_BUT_WHITESPACE = new RegExp(`[\\u0000-\\u0008\\u000b\\u000c\\u000e-\\u001f${BEYOND_C0_CLASS}]`);
+const CONTROLS_BUT_WHITESPACE_G = new RegExp(CONTROLS_BUT_WHITESPACE.source, 'g');
 
 /** The visible stand-in for one control character. */
 export function controlPicture(c: string): string {

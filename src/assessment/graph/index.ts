@@ -29,10 +29,17 @@ export function selectionFor(inputs: VisitInputs, choice: MethodChoice): Selecti
   return { pesMethod: choice.pesMethod, strokeVolumeSource: choice.strokeVolumeSource, mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod };
 }
 
+/**
+ * The visit's own choices: its Pes method, MAP and BSA formulas, and Doppler SV preferred, which the SV
+ * node's rules turn into the volumes when there is none (defaultChoice).
+ */
+function ownSelection(inputs: VisitInputs): Selection {
+  return { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod };
+}
+
 /** The plan of a visit under a method choice (default: the visit's own). */
 export function visitPlan(inputs: VisitInputs, choice?: MethodChoice): Plan {
-  // Without a choice: Doppler SV preferred, which the SV node's rules turn into the volumes when there is none (defaultChoice).
-  return planForInputs(inputs, selectionFor(inputs, choice ?? { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler' }));
+  return planForInputs(inputs, choice ? selectionFor(inputs, choice) : ownSelection(inputs));
 }
 
 /** Default method choice: the inputs' Pes method, Doppler SV when given (as in Chen 2001). */
@@ -42,9 +49,7 @@ export function defaultChoice(inputs: VisitInputs): MethodChoice {
 
 /** Every result of one visit under a method choice. */
 export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Results {
-  if (choice) return resultsFor(inputs, selectionFor(inputs, choice));
-  // The visit's own choices, as visitPlan takes them, in one object: a batch computes a hundred thousand visits.
-  return resultsFor(inputs, { pesMethod: inputs.pesMethod, strokeVolumeSource: 'doppler', mapMethod: inputs.mapMethod, bsaMethod: inputs.bsaMethod });
+  return resultsFor(inputs, choice ? selectionFor(inputs, choice) : ownSelection(inputs));
 }
 
 /**
@@ -53,14 +58,8 @@ export function computeResults(inputs: VisitInputs, choice?: MethodChoice): Resu
  * out before it computes the next row (plan.ts resultsInto).
  */
 export function computeResultsInto(target: Results, inputs: VisitInputs): Results {
-  // The visit's own choices (as computeResults takes them) in one object kept between calls: the plan copies them.
-  const selection = intoSelection;
-  selection.pesMethod = inputs.pesMethod;
-  selection.mapMethod = inputs.mapMethod;
-  selection.bsaMethod = inputs.bsaMethod;
-  return resultsInto(target, inputs, selection);
+  return resultsInto(target, inputs, ownSelection(inputs));
 }
-const intoSelection: Selection = { pesMethod: 'sbp90', strokeVolumeSource: 'doppler', mapMethod: 'third', bsaMethod: 'mosteller' };
 
 /** Whether the visit has a Doppler stroke volume (entered, or from LVOT diameter and VTI). */
 export function hasDopplerStrokeVolume(inputs: VisitInputs): boolean {

@@ -161,8 +161,7 @@ const planCode = ((): ((presentMask: number, selection: Selection) => number) =>
 function planByCode(code: number, inputs: Readonly<Record<NumericKey, number | null>>, selection: Selection): Plan {
   let plan = plans.get(code);
   if (!plan) {
-    // The plan keeps a copy of the choices: a caller may reuse its selection object.
-    plan = buildPlan(presentInputs(inputs), { ...selection });
+    plan = buildPlan(presentInputs(inputs), selection);
     plans.set(code, plan);
   }
   return plan;
